@@ -1,0 +1,40 @@
+#include "raster/gdal_session.hpp"
+
+#include <cpl_error.h>
+#include <gdal.h>
+
+#include <mutex>
+
+#include "util/log.hpp"
+
+namespace tinct {
+namespace {
+
+void route_to_log(CPLErr level, CPLErrorNum, const char* message) {
+  // Failures are re-raised as tinct errors with context by the caller; only
+  // warnings are worth showing on their own.
+  if (level == CE_Warning) {
+    log::warning(std::string("GDAL: ") + message);
+  } else if (level == CE_Debug) {
+    log::debug(std::string("GDAL: ") + message);
+  }
+}
+
+}  // namespace
+
+void ensure_gdal() {
+  static std::once_flag once;
+  std::call_once(once, [] {
+    GDALAllRegister();
+    CPLSetErrorHandler(route_to_log);
+  });
+}
+
+std::string last_gdal_message() {
+  const char* message = CPLGetLastErrorMsg();
+  return message ? message : "";
+}
+
+std::string gdal_version() { return GDALVersionInfo("RELEASE_NAME"); }
+
+}  // namespace tinct

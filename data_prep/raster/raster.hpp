@@ -1,0 +1,66 @@
+// An open raster (any GDAL dataset: GeoTIFF, VRT, JP2, ...) with RAII ownership.
+// Windowed reads only: callers ask for a rectangle, never the whole scene.
+#pragma once
+
+#include <array>
+#include <filesystem>
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+class GDALDataset;
+
+namespace tinct {
+
+// GDAL's affine geotransform: x = gt[0] + col*gt[1] + row*gt[2], y = gt[3] + col*gt[4] + row*gt[5].
+using GeoTransform = std::array<double, 6>;
+
+struct BandInfo {
+  int index = 0;  // 1-based, as GDAL counts
+  std::string description;
+  std::string data_type;  // GDAL's name: Byte, UInt16, Float32, ...
+  std::optional<double> nodata;
+  int overview_count = 0;
+  int block_width = 0;
+  int block_height = 0;
+};
+
+class Raster {
+ public:
+  // Opens read-only; a missing file or a file GDAL cannot read is a clear error.
+  static Raster open(const std::filesystem::path& path);
+  Raster(Raster&&) noexcept;
+  Raster& operator=(Raster&&) noexcept;
+  ~Raster();
+
+  const std::filesystem::path& path() const { return path_; }
+  std::string driver() const;
+  int width() const;
+  int height() const;
+  int band_count() const;
+  BandInfo band(int index) const;
+  // The band whose description (or GDAL band name) equals `name`, 1-based.
+  std::optional<int> band_by_description(const std::string& name) const;
+
+  bool has_geotransform() const;
+  GeoTransform geotransform() const;
+  std::string crs_wkt() const;  // "" when the raster has no CRS
+  std::optional<int> epsg() const;
+
+  // Reads band `index` (1-based) over the window into `out` (width*height values),
+  // converting to double. Fails with the file and window on an I/O error.
+  void read(int index, int col, int row, int width, int height, double* out) const;
+  void read(int index, int col, int row, int width, int height, float* out) const;
+  // Metadata item of the dataset (domain "" by default), "" when absent.
+  std::string metadata(const std::string& key, const std::string& domain = "") const;
+
+  GDALDataset* handle() const { return dataset_; }
+
+ private:
+  Raster(std::filesystem::path path, GDALDataset* dataset);
+  std::filesystem::path path_;
+  GDALDataset* dataset_ = nullptr;
+};
+
+}  // namespace tinct

@@ -1,0 +1,81 @@
+#include "raster/survey_report.hpp"
+
+#include <cmath>
+#include <cstdio>
+#include <sstream>
+
+namespace tinct {
+namespace {
+
+std::string format(const char* pattern, double value) {
+  char text[64];
+  std::snprintf(text, sizeof(text), pattern, value);
+  return text;
+}
+
+std::string crs_label(const RasterSurvey& survey) {
+  if (survey.epsg) return "EPSG:" + std::to_string(*survey.epsg);
+  return "custom (no EPSG code; WKT in --json)";
+}
+
+}  // namespace
+
+std::string survey_table(const RasterSurvey& s) {
+  std::ostringstream out;
+  const auto& gt = s.geotransform;
+  out << s.path << "\n";
+  out << "  driver      " << s.driver << "\n";
+  out << "  size        " << s.width << " x " << s.height << " pixels, " << s.bands.size() << " bands\n";
+  out << "  CRS         " << crs_label(s) << "\n";
+  out << "  pixel size  " << format("%.6g", gt[1]) << " x " << format("%.6g", std::fabs(gt[5]));
+  if (gt[2] != 0 || gt[4] != 0) out << " (rotated grid)";
+  out << "\n";
+  out << "  origin      " << format("%.4f", gt[0]) << ", " << format("%.4f", gt[3]) << "\n";
+  char header[160];
+  std::snprintf(header, sizeof(header), "  %4s  %-16s %-8s %10s %12s %12s %12s %12s %7s %4s\n",
+                "band", "description", "type", "nodata", "min", "max", "mean", "std", "valid", "ovr");
+  out << header;
+  for (const auto& b : s.bands) {
+    const std::string nodata = b.info.nodata ? format("%g", *b.info.nodata) : "-";
+    const bool any = b.valid_count > 0;
+    char line[200];
+    std::snprintf(line, sizeof(line), "  %4d  %-16s %-8s %10s %12s %12s %12s %12s %6.1f%% %4d\n",
+                  b.info.index, b.info.description.empty() ? "-" : b.info.description.c_str(),
+                  b.info.data_type.c_str(), nodata.c_str(), any ? format("%.6g", b.min).c_str() : "-",
+                  any ? format("%.6g", b.max).c_str() : "-", any ? format("%.6f", b.mean).c_str() : "-",
+                  any ? format("%.6f", b.std).c_str() : "-", 100.0 * b.valid_fraction,
+                  b.info.overview_count);
+    out << line;
+  }
+  return out.str();
+}
+
+Json survey_json(const RasterSurvey& s) {
+  Json root = Json::object();
+  root.set("path", s.path).set("driver", s.driver).set("width", s.width).set("height", s.height);
+  Json crs = Json::object();
+  crs.set("epsg", s.epsg ? Json(*s.epsg) : Json()).set("wkt", s.crs_wkt);
+  root.set("crs", crs);
+  Json gt = Json::array();
+  for (double v : s.geotransform) gt.push(v);
+  root.set("geotransform", gt);
+  root.set("pixel_size", Json::array().push(s.geotransform[1]).push(std::fabs(s.geotransform[5])));
+  root.set("origin", Json::array().push(s.geotransform[0]).push(s.geotransform[3]));
+  Json bands = Json::array();
+  for (const auto& b : s.bands) {
+    Json band = Json::object();
+    band.set("index", b.info.index).set("description", b.info.description)
+        .set("type", b.info.data_type)
+        .set("nodata", b.info.nodata ? Json(*b.info.nodata) : Json())
+        .set("valid_count", b.valid_count).set("valid_fraction", b.valid_fraction);
+    const bool any = b.valid_count > 0;
+    band.set("min", any ? Json(b.min) : Json()).set("max", any ? Json(b.max) : Json())
+        .set("mean", any ? Json(b.mean) : Json()).set("std", any ? Json(b.std) : Json())
+        .set("overviews", b.info.overview_count);
+    bands.push(band);
+  }
+  root.set("bands", bands);
+  return root;
+}
+
+}  // namespace tinct

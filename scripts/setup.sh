@@ -1,0 +1,32 @@
+#!/usr/bin/env bash
+# Installs what is missing from Debian and builds tinct into build/.
+# Idempotent: on a machine that has everything it only rebuilds what changed.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+packages=(
+  cmake g++ make ccache pkg-config git
+  libtorch-dev libgloo-dev libopenblas0-pthread
+  libgdal-dev gdal-bin libopencv-dev libyaml-cpp-dev libcli11-dev catch2
+  # used by the reference tests (Debian's /usr/bin/python3) and the demo
+  python3-numpy python3-gdal python3-sklearn python3-scipy python3-skimage proj-bin
+)
+
+missing=()
+for package in "${packages[@]}"; do
+  dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" ||
+    missing+=("$package")
+done
+if [[ ${#missing[@]} -gt 0 ]]; then
+  echo "setup: installing ${missing[*]}"
+  sudo=""
+  [[ $(id -u) -eq 0 ]] || sudo="sudo"
+  $sudo apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
+fi
+
+build_type=${TINCT_BUILD_TYPE:-Release}
+if [[ ! -f build/CMakeCache.txt ]]; then
+  cmake -S . -B build -DCMAKE_BUILD_TYPE="$build_type" > /dev/null
+fi
+cmake --build build -j"$(nproc)"

@@ -1,0 +1,85 @@
+#include <catch2/catch.hpp>
+
+#include <sys/wait.h>
+#include <unistd.h>
+#include <yaml-cpp/yaml.h>
+
+#include "runs/blas_probe.hpp"
+#include "runs/run_folder.hpp"
+#include "runs/torch_runtime.hpp"
+#include "temp_folder.hpp"
+#include "util/error.hpp"
+#include "util/sha256.hpp"
+
+using Catch::Matchers::Contains;
+using tinct::RunFolder;
+using tinct::RunStatus;
+using tinct::testing::TempFolder;
+
+TEST_CASE("a run folder records config, hash, status, versions, threads and BLAS") {
+  TempFolder folder;
+  const auto path = folder / "runs" / "first";
+  {
+    RunFolder run(path, {});
+    const std::string hash = run.write_config("config: pretrain\nseed: 7\n");
+    CHECK(hash == tinct::sha256_hex("config: pretrain\nseed: 7\n"));
+    run.write_status(RunStatus::running, 7);
+    CHECK(RunFolder::recorded_status(path) == "running");
+    run.write_status(RunStatus::done, 7);
+  }
+  const YAML::Node run_yaml = YAML::LoadFile((path / "run.yaml").string());
+  CHECK(run_yaml["status"].as<std::string>() == "done");
+  CHECK(run_yaml["seed"].as<int>() == 7);
+  CHECK(run_yaml["threads"].as<int>() == tinct::threads_in_use());
+  CHECK(run_yaml["versions"]["libtorch"].as<std::string>() == tinct::libtorch_version());
+  CHECK_FALSE(run_yaml["config_hash"].as<std::string>().empty());
+  CHECK(std::filesystem::exists(path / "log.txt"));
+  CHECK(std::filesystem::exists(path / "config.resolved.yaml"));
+}
+
+TEST_CASE("a finished run is not overwritten without force, and force starts over") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  { RunFolder(path, {}).write_status(RunStatus::done, 1); }
+  try {
+    RunFolder again(path, {});
+    FAIL("expected a refusal");
+  } catch (const tinct::Error& e) {
+    CHECK_THAT(e.what(), Contains("exists (status: done)"));
+    CHECK_THAT(e.what(), Contains("--force"));
+    CHECK(e.exit_code() == 2);
+  }
+  RunFolder forced(path, {/*force=*/true, /*resume=*/false});
+  CHECK_FALSE(std::filesystem::exists(path / "run.yaml"));
+}
+
+TEST_CASE("a second process cannot open a run that is held") {
+  TempFolder folder;
+  const auto path = folder / "held";
+  RunFolder run(path, {});
+  const pid_t child = ::fork();
+  if (child == 0) {
+    try {
+      RunFolder second(path, {true, false});
+      ::_exit(0);  // opened: the lock failed
+    } catch (const tinct::Error& e) {
+      ::_exit(std::string(e.what()).find("in use by another tinct process") != std::string::npos ? 3 : 4);
+    }
+  }
+  int status = 0;
+  ::waitpid(child, &status, 0);
+  CHECK(WIFEXITED(status));
+  CHECK(WEXITSTATUS(status) == 3);
+}
+
+TEST_CASE("BLAS family is read from library paths") {
+  CHECK(tinct::blas_family("/usr/lib/x86_64-linux-gnu/openblas-pthread/libblas.so.3") == "openblas");
+  CHECK(tinct::blas_family("/usr/lib/x86_64-linux-gnu/blas/libblas.so.3.11.0") == "reference");
+  // This process links LibTorch, so some BLAS is mapped; setup.sh installs OpenBLAS.
+  CHECK_FALSE(tinct::blas_in_use().library.empty());
+}
+
+TEST_CASE("threads are set as asked, and 0 means all cores") {
+  CHECK(tinct::configure_threads(1) == 1);
+  CHECK(tinct::configure_threads(0) >= 1);
+}

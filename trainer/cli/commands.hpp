@@ -1,0 +1,29 @@
+// The subcommand table's types. Each command lives in its own file: it declares
+// its options on its CLI11 subcommand and returns the function to run once the
+// command line has been parsed (so errors are caught in one place, in main).
+#pragma once
+
+#include <CLI/CLI.hpp>
+
+#include <functional>
+
+namespace tinct {
+
+struct GlobalOptions {
+  int threads = 0;  // 0 = all cores
+  bool quiet = false;
+};
+
+using CommandRun = std::function<void()>;
+using CommandSetup = CommandRun (*)(CLI::App& command, const GlobalOptions& global);
+
+struct CommandEntry {
+  const char* name;
+  const char* summary;
+  CommandSetup setup;
+};
+
+CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_check(CLI::App& command, const GlobalOptions& global);
+
+}  // namespace tinct

@@ -1,0 +1,70 @@
+// tinct's entry point: global options, the table of subcommands, and the one
+// place where errors become messages and exit codes (0 ok, 1 runtime, 2 usage).
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "cli/commands.hpp"
+#include "raster/gdal_session.hpp"
+#include "runs/torch_runtime.hpp"
+#include "util/error.hpp"
+#include "util/log.hpp"
+#include "util/version_info.hpp"
+
+namespace {
+
+const tinct::CommandEntry kCommands[] = {
+    {"survey", "Describe rasters: grid, CRS and exact per-band statistics", tinct::setup_survey},
+    {"check", "Validate a config without running it and print it with every default filled in",
+     tinct::setup_check},
+};
+
+std::string version_text() {
+  return "tinct " + tinct::tinct_version() + "\nLibTorch " + tinct::libtorch_version() + "\nGDAL " +
+         tinct::gdal_version() + "\nOpenCV " + tinct::opencv_version();
+}
+
+int parse_error_exit(const CLI::App& app, const CLI::ParseError& error) {
+  const int code = app.exit(error);  // prints help, version or the usage error
+  return code == 0 ? 0 : 2;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  CLI::App app{"tinct: self-supervised band-to-colour pretraining and habitat mapping from "
+               "multispectral imagery, on the CPU"};
+  app.set_version_flag("--version", version_text());
+  app.require_subcommand(1);
+  tinct::GlobalOptions global;
+  app.add_option("--threads", global.threads, "Compute threads (default: all cores)")
+      ->check(CLI::NonNegativeNumber);
+  app.add_flag("--quiet,-q", global.quiet, "Only warnings and errors on stderr");
+
+  std::vector<std::pair<CLI::App*, tinct::CommandRun>> commands;
+  for (const auto& entry : kCommands) {
+    CLI::App* command = app.add_subcommand(entry.name, entry.summary);
+    commands.emplace_back(command, entry.setup(*command, global));
+  }
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& error) {
+    return parse_error_exit(app, error);
+  }
+
+  try {
+    tinct::log::set_quiet(global.quiet);
+    tinct::configure_threads(global.threads);
+    for (auto& [command, run] : commands) {
+      if (command->parsed()) run();
+    }
+    return 0;
+  } catch (const tinct::Error& error) {
+    tinct::log::error(error.what());
+    return error.exit_code();
+  } catch (const std::exception& error) {
+    tinct::log::error(std::string("unexpected failure: ") + error.what());
+    return 1;
+  }
+}

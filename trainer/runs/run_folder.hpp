@@ -1,0 +1,48 @@
+// A run folder runs/NAME/: config.resolved.yaml, run.yaml (status, times,
+// versions, threads, BLAS, seed, config hash) and log.txt. Holding a RunFolder
+// holds an exclusive lock on it; a second writer is refused. Every file in it is
+// written atomically.
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <string>
+
+namespace tinct {
+
+enum class RunStatus { running, done, failed };
+
+struct RunOpening {
+  bool force = false;   // start over in a run folder that exists
+  bool resume = false;  // continue the run that exists
+};
+
+class RunFolder {
+ public:
+  // Creates or reopens `path`. Fails if another process holds the run, or if the
+  // folder holds a run and neither force nor resume is set.
+  RunFolder(std::filesystem::path path, RunOpening opening);
+  ~RunFolder();
+  RunFolder(const RunFolder&) = delete;
+  RunFolder& operator=(const RunFolder&) = delete;
+
+  const std::filesystem::path& path() const { return path_; }
+  std::filesystem::path file(const std::string& name) const { return path_ / name; }
+
+  // Saves the resolved config and returns its SHA-256.
+  std::string write_config(const std::string& resolved_yaml);
+  // Writes run.yaml with the given status; the first call records the start.
+  void write_status(RunStatus status, std::int64_t seed, const std::string& note = "");
+  // Status recorded in an existing run.yaml ("" when there is none).
+  static std::string recorded_status(const std::filesystem::path& run_path);
+
+ private:
+  std::filesystem::path path_;
+  int lock_fd_ = -1;
+  std::string config_hash_;
+  std::string started_;
+};
+
+std::string to_string(RunStatus status);
+
+}  // namespace tinct
