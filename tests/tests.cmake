@@ -21,3 +21,23 @@ tinct_script_test(check_configs bash ${CMAKE_SOURCE_DIR}/tests/integration/check
 tinct_script_test(reference_survey_vs_gdalinfo
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/survey_vs_gdalinfo.py)
 set_tests_properties(reference_survey_vs_gdalinfo PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# Colour module against scikit-image and numpy: the script writes the reference CSVs
+# (fixture colour_reference), tinct_reference_tests reads them.
+add_test(NAME make_colour_reference
+         COMMAND ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/make_colour_reference.py)
+set_tests_properties(make_colour_reference PROPERTIES
+  FIXTURES_SETUP colour_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+
+add_executable(tinct_reference_tests tests/reference/test_colour_reference.cpp)
+target_link_libraries(tinct_reference_tests PRIVATE tinct_data tinct_catch_main)
+catch_discover_tests(tinct_reference_tests PROPERTIES
+  FIXTURES_REQUIRED colour_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+
+# tinct pair: real data, GDAL's own warper, co-registration and bad input.
+tinct_script_test(reference_pair_l7_vs_gdal ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_l7_vs_gdal.py)
+set_tests_properties(reference_pair_l7_vs_gdal PROPERTIES FIXTURES_REQUIRED debian_data)
+tinct_script_test(reference_pair_resampling_vs_gdalwarp
+  ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_resampling_vs_gdalwarp.py)
+tinct_script_test(pair_coregistration ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_coregistration.py)
+tinct_script_test(pair_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_bad_input.py)

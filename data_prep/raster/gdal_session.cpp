@@ -1,5 +1,6 @@
 #include "raster/gdal_session.hpp"
 
+#include <cpl_conv.h>
 #include <cpl_error.h>
 #include <gdal.h>
 
@@ -9,6 +10,8 @@
 
 namespace tinct {
 namespace {
+
+constexpr GIntBig kBlockCacheBytes = 64LL * 1024 * 1024;
 
 void route_to_log(CPLErr level, CPLErrorNum, const char* message) {
   // Failures are re-raised as tinct errors with context by the caller; only
@@ -27,6 +30,9 @@ void ensure_gdal() {
   std::call_once(once, [] {
     GDALAllRegister();
     CPLSetErrorHandler(route_to_log);
+    // GDAL's default block cache is 5 % of RAM; tinct reads each tile about once
+    // in row order, so a small cache keeps memory bounded whatever the scene size.
+    if (!CPLGetConfigOption("GDAL_CACHEMAX", nullptr)) GDALSetCacheMax64(kBlockCacheBytes);
   });
 }
 

@@ -77,6 +77,11 @@ Raster Raster::open(const fs::path& path) {
   return Raster(path, dataset);
 }
 
+Raster Raster::adopt(GDALDataset* dataset, const fs::path& label) {
+  if (!dataset) fail_runtime(label.string() + ": GDAL could not build the dataset: " + last_gdal_message());
+  return Raster(label, dataset);
+}
+
 std::string Raster::driver() const { return dataset_->GetDriver()->GetDescription(); }
 int Raster::width() const { return dataset_->GetRasterXSize(); }
 int Raster::height() const { return dataset_->GetRasterYSize(); }
@@ -148,6 +153,28 @@ void Raster::read(int index, int col, int row, int width, int height, double* ou
 
 void Raster::read(int index, int col, int row, int width, int height, float* out) const {
   read_window(dataset_, path_, index, col, row, width, height, out, GDT_Float32);
+}
+
+void Raster::read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
+                        float* out) const {
+  for (int index : indices) {
+    if (index < 1 || index > band_count()) {
+      fail_runtime(path_.string() + ": band " + std::to_string(index) + " does not exist (the raster has " +
+                   std::to_string(band_count()) + " bands)");
+    }
+  }
+  if (col < 0 || row < 0 || col + width > this->width() || row + height > this->height()) {
+    fail_runtime(path_.string() + ": window " + std::to_string(col) + "," + std::to_string(row) + " " +
+                 std::to_string(width) + "x" + std::to_string(height) + " lies outside the raster");
+  }
+  std::vector<int> map(indices);
+  const CPLErr status = dataset_->RasterIO(GF_Read, col, row, width, height, out, width, height,
+                                           GDT_Float32, static_cast<int>(map.size()), map.data(), 0, 0,
+                                           0, nullptr);
+  if (status != CE_None) {
+    fail_runtime(path_.string() + ": read failed at col " + std::to_string(col) + ", row " +
+                 std::to_string(row) + ": " + last_gdal_message() + "; the file may be truncated or corrupt");
+  }
 }
 
 std::string Raster::metadata(const std::string& key, const std::string& domain) const {

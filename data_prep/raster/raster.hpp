@@ -30,6 +30,8 @@ class Raster {
  public:
   // Opens read-only; a missing file or a file GDAL cannot read is a clear error.
   static Raster open(const std::filesystem::path& path);
+  // Takes ownership of a dataset made in memory (a warped VRT); `label` names it in errors.
+  static Raster adopt(GDALDataset* dataset, const std::filesystem::path& label);
   Raster(Raster&&) noexcept;
   Raster& operator=(Raster&&) noexcept;
   ~Raster();
@@ -52,6 +54,10 @@ class Raster {
   // converting to double. Fails with the file and window on an I/O error.
   void read(int index, int col, int row, int width, int height, double* out) const;
   void read(int index, int col, int row, int width, int height, float* out) const;
+  // Reads several bands over one window in a single call (band after band in `out`),
+  // so a pixel-interleaved file decodes each tile once.
+  void read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
+                  float* out) const;
   // Metadata item of the dataset (domain "" by default), "" when absent.
   std::string metadata(const std::string& key, const std::string& domain = "") const;
 

@@ -4,6 +4,7 @@
 #include <iostream>
 
 #include "cli/commands.hpp"
+#include "pairing/pair_config.hpp"
 #include "raster/sensor_profile.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
@@ -22,6 +23,7 @@ struct ConfigKind {
 
 const ConfigKind kConfigKinds[] = {
     {"sensor", [](const ConfigNode& root) { read_sensor_profile(root); }},
+    {"pair", [](const ConfigNode& root) { read_pair_config(root); }},
 };
 
 void run_check(const std::string& file) {

@@ -25,5 +25,6 @@ struct CommandEntry {
 
 CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_check(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_pair(CLI::App& command, const GlobalOptions& global);
 
 }  // namespace tinct

@@ -15,6 +15,8 @@ namespace {
 
 const tinct::CommandEntry kCommands[] = {
     {"survey", "Describe rasters: grid, CRS and exact per-band statistics", tinct::setup_survey},
+    {"pair", "Pair unlabelled band stacks with co-registered colour into a store of chips",
+     tinct::setup_pair},
     {"check", "Validate a config without running it and print it with every default filled in",
      tinct::setup_check},
 };

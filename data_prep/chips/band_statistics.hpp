@@ -1,0 +1,38 @@
+// Per-band statistics of the valid pixels of a store's bands, in reflectance units,
+// in bounded memory: Welford (RunningStats) for mean and std, and a 65536-bin
+// histogram per band for p02 and p98 with numpy's default (linear) percentile.
+// Exact for uint16 storage (a bin per stored value); for float32 a first pass finds
+// min and max and the percentiles are exact to a bin width, (max - min) / 65536.
+#pragma once
+
+#include <algorithm>
+#include <cmath>
+#include <cstdint>
+#include <vector>
+
+#include "chips/store_manifest.hpp"
+
+namespace tinct {
+
+// `bands` and `valid` hold `chip_count` chips laid out as in bands.bin and valid.bin.
+// A band with no valid pixel gets count 0. Fails (runtime) on a non-finite value at
+// a valid pixel.
+std::vector<BandStatistics> band_statistics(const StoreLayout& layout, std::int64_t chip_count,
+                                            const std::uint8_t* bands, const std::uint8_t* valid);
+
+// numpy.percentile(values, percent) with its default linear method, given the k-th
+// smallest of `count` values by `value_of_rank(k)`.
+template <typename ValueOfRank>
+double linear_percentile(std::int64_t count, double percent, ValueOfRank value_of_rank) {
+  const double position = static_cast<double>(count - 1) * (percent / 100.0);
+  const double below = std::floor(position);
+  const auto rank = static_cast<std::int64_t>(below);
+  const double a = value_of_rank(rank);
+  const double b = value_of_rank(std::min(rank + 1, count - 1));
+  const double t = position - below;
+  const double difference = b - a;
+  // numpy's _lerp: from the upper end when t >= 0.5, for monotonicity.
+  return t >= 0.5 ? b - difference * (1 - t) : a + difference * t;
+}
+
+}  // namespace tinct

@@ -1,0 +1,71 @@
+#include "chips/buffered_file.hpp"
+
+#include <fcntl.h>
+#include <unistd.h>
+
+#include <cerrno>
+#include <cstring>
+
+#include "util/error.hpp"
+
+namespace tinct {
+
+BufferedFile::BufferedFile(std::filesystem::path file, std::size_t buffer_bytes)
+    : path_(std::move(file)), buffer_(buffer_bytes) {
+  fd_ = ::open(path_.c_str(), O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
+  if (fd_ < 0) {
+    fail_runtime("cannot create " + path_.string() + ": " + std::strerror(errno) +
+                 "; check that the folder is writable");
+  }
+}
+
+BufferedFile::~BufferedFile() {
+  if (fd_ >= 0) ::close(fd_);
+}
+
+void BufferedFile::write(const void* data, std::size_t size) {
+  if (fd_ < 0) fail_runtime("cannot write " + path_.string() + ": already closed");
+  const char* bytes = static_cast<const char*>(data);
+  if (used_ + size > buffer_.size()) {
+    flush();
+    if (size >= buffer_.size()) {
+      write_through(bytes, size);
+      return;
+    }
+  }
+  std::memcpy(buffer_.data() + used_, bytes, size);
+  used_ += size;
+}
+
+void BufferedFile::close() {
+  if (fd_ < 0) return;
+  flush();
+  if (::fsync(fd_) != 0) {
+    fail_runtime("cannot write " + path_.string() + ": fsync failed (" + std::strerror(errno) + ")");
+  }
+  const int fd = fd_;
+  fd_ = -1;
+  if (::close(fd) != 0) {
+    fail_runtime("cannot write " + path_.string() + ": close failed (" + std::strerror(errno) + ")");
+  }
+}
+
+void BufferedFile::flush() {
+  write_through(buffer_.data(), used_);
+  used_ = 0;
+}
+
+void BufferedFile::write_through(const char* data, std::size_t size) {
+  while (size > 0) {
+    const ssize_t written = ::write(fd_, data, size);
+    if (written < 0 && errno == EINTR) continue;
+    if (written <= 0) {
+      fail_runtime("cannot write " + path_.string() + ": " + std::strerror(errno) +
+                   " (disk full?); free space or choose another output folder");
+    }
+    data += written;
+    size -= static_cast<std::size_t>(written);
+  }
+}
+
+}  // namespace tinct

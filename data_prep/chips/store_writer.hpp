@@ -1,0 +1,67 @@
+// Writes a chip store chip by chip into NAME.partial/ and renames it to NAME in
+// finish(), so a store is either complete or absent. Pixels stream to the .bin
+// files through large buffers and are never held; finish() computes the band
+// statistics in one pass over the written bands.bin through a read-only map.
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <memory>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "chips/buffered_file.hpp"
+#include "chips/chip_record.hpp"
+#include "chips/store_manifest.hpp"
+#include "util/atomic_file.hpp"
+
+namespace tinct {
+
+class StoreWriter {
+ public:
+  // Fails (usage) when `target` exists and `replace` is not set, leaving it untouched.
+  StoreWriter(std::filesystem::path target, StoreLayout layout, bool replace);
+  StoreWriter(const StoreWriter&) = delete;
+  StoreWriter& operator=(const StoreWriter&) = delete;
+  ~StoreWriter();  // without finish(): removes NAME.partial/
+
+  // bands: bands x size x size values of the store's storage type; colour: 3 x size x
+  // size cielab8 codes, or nullptr when the store has no colour; valid: size x size,
+  // 1 for valid pixels. record.index must be the chip's position (chip_count()).
+  void add(const ChipRecord& record, const void* bands, const std::uint8_t* colour,
+           const std::uint8_t* valid);
+
+  // Takes crs, pixel_size, classes, scenes, config_hash and tinct_version (filled in
+  // when empty) from `header_fields`; sets everything else. An empty crs becomes the
+  // scenes' CRS when all their WKT texts are equal (a caller that knows two texts
+  // name one CRS sets it itself). Without any chip added it fails: "no chips to write".
+  void finish(StoreManifest header_fields);
+
+  std::int64_t chip_count() const { return chip_count_; }
+  const std::filesystem::path& target() const { return folder_.target(); }
+
+ private:
+  enum class State { open, failed, finished };
+  void require_open(const char* step) const;
+  StoreManifest complete_manifest(StoreManifest manifest) const;
+  void check_chips_against(const StoreManifest& manifest) const;
+  std::vector<BandStatistics> statistics_of_written() const;
+
+  StoreLayout layout_;    // checked before folder_ creates anything
+  PartialFolder folder_;  // before the files: destroyed after they are closed
+  std::int64_t band_bytes_ = 0;
+  std::int64_t colour_bytes_ = 0;
+  std::int64_t valid_bytes_ = 0;
+  std::unique_ptr<BufferedFile> bands_;
+  std::unique_ptr<BufferedFile> colour_;
+  std::unique_ptr<BufferedFile> valid_;
+  std::unique_ptr<BufferedFile> chips_csv_;
+  std::string row_;
+  std::set<std::string> scenes_seen_;
+  std::set<std::string> labels_seen_;
+  std::int64_t chip_count_ = 0;
+  State state_ = State::open;
+};
+
+}  // namespace tinct

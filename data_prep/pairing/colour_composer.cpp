@@ -1,0 +1,121 @@
+#include "pairing/colour_composer.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <memory>
+#include <optional>
+#include <vector>
+
+#include "colour/srgb_lab.hpp"
+#include "util/error.hpp"
+
+namespace tinct {
+namespace {
+
+constexpr int kStripRows = 128;
+constexpr std::size_t kFloatBins = 65536;
+
+struct ValueRange {
+  double min, max;
+  std::size_t bins;
+};
+
+std::optional<ValueRange> integer_range(const std::string& type) {
+  if (type == "Byte") return ValueRange{0, 255, 256};
+  if (type == "UInt16") return ValueRange{0, 65535, 65536};
+  if (type == "Int16") return ValueRange{-32768, 32767, 65536};
+  return std::nullopt;
+}
+
+template <typename Visit>
+void for_each_strip(const ColourReader& read, const TargetGrid& grid, Visit visit) {
+  std::vector<float> strip(3 * static_cast<std::size_t>(grid.width) * kStripRows);
+  for (int row = 0; row < grid.height; row += kStripRows) {
+    const int rows = std::min(kStripRows, grid.height - row);
+    read(0, row, grid.width, rows, strip.data());
+    visit(strip.data(), static_cast<std::size_t>(grid.width) * rows);
+  }
+}
+
+bool all_finite(const float* rgb, std::size_t plane, std::size_t i) {
+  return std::isfinite(rgb[i]) && std::isfinite(rgb[plane + i]) && std::isfinite(rgb[2 * plane + i]);
+}
+
+// Min and max of valid pixels per band, for sources without a fixed integer range.
+std::array<ValueRange, 3> measured_ranges(const ColourReader& read, const TargetGrid& grid) {
+  std::array<ValueRange, 3> ranges;
+  for (auto& r : ranges) r = {std::numeric_limits<double>::max(), std::numeric_limits<double>::lowest(), kFloatBins};
+  for_each_strip(read, grid, [&](const float* rgb, std::size_t n) {
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!all_finite(rgb, n, i)) continue;
+      for (int b = 0; b < 3; ++b) {
+        ranges[b].min = std::min(ranges[b].min, double(rgb[b * n + i]));
+        ranges[b].max = std::max(ranges[b].max, double(rgb[b * n + i]));
+      }
+    }
+  });
+  for (auto& r : ranges) {
+    if (r.min > r.max) fail_runtime("the colour bands hold no valid pixel in this scene");
+    if (r.max <= r.min) r.max = r.min + 1;
+  }
+  return ranges;
+}
+
+}  // namespace
+
+ColourComposer ColourComposer::for_byte_colour() {
+  const BandStretch identity{0, 255, 1.0};
+  return ColourComposer({identity, identity, identity});
+}
+
+ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& grid,
+                                   const std::array<std::string, 3>& data_types,
+                                   const StretchSettings& settings) {
+  std::array<ValueRange, 3> ranges;
+  bool all_integer = true;
+  for (int b = 0; b < 3; ++b) {
+    const auto range = integer_range(data_types[b]);
+    all_integer = all_integer && range.has_value();
+    if (range) ranges[b] = *range;
+  }
+  if (!all_integer) ranges = measured_ranges(read, grid);
+  std::vector<PercentileHistogram> histograms;
+  for (const auto& r : ranges) histograms.emplace_back(r.min, r.max, r.bins);
+  for_each_strip(read, grid, [&](const float* rgb, std::size_t n) {
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!all_finite(rgb, n, i)) continue;
+      for (int b = 0; b < 3; ++b) histograms[b].add(rgb[b * n + i]);
+    }
+  });
+  if (histograms[0].count() == 0) fail_runtime("the colour bands hold no valid pixel in this scene");
+  return ColourComposer({make_stretch(histograms[0], settings), make_stretch(histograms[1], settings),
+                         make_stretch(histograms[2], settings)});
+}
+
+void ColourComposer::stretched(const float* rgb, std::size_t n, float* out) const {
+  for (int b = 0; b < 3; ++b) {
+    for (std::size_t i = 0; i < n; ++i) out[b * n + i] = static_cast<float>(stretches_[b].apply(rgb[b * n + i]));
+  }
+}
+
+void ColourComposer::compose(const float* rgb, std::size_t n, std::uint8_t* lab, std::uint8_t* valid) const {
+  std::vector<float> srgb(3 * n);
+  stretched(rgb, n, srgb.data());
+  srgb_to_lab_codes(srgb.data(), srgb.data() + n, srgb.data() + 2 * n, n, lab, lab + n, lab + 2 * n);
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!all_finite(rgb, n, i)) valid[i] = 0;
+  }
+}
+
+void ColourComposer::lightness(const float* rgb, std::size_t n, float* out) const {
+  std::vector<float> srgb(3 * n);
+  stretched(rgb, n, srgb.data());
+  for (std::size_t i = 0; i < n; ++i) {
+    out[i] = all_finite(rgb, n, i)
+                 ? static_cast<float>(srgb_to_lab(srgb[i], srgb[n + i], srgb[2 * n + i]).L)
+                 : std::numeric_limits<float>::quiet_NaN();
+  }
+}
+
+}  // namespace tinct

@@ -1,0 +1,43 @@
+// Turns three aligned bands (red, green, blue stored values) into 8-bit CIE Lab
+// codes for one scene. The stretch is fitted once per scene from every valid pixel
+// (a streaming percentile histogram, one strip at a time); a Byte colour raster is
+// taken as display-ready sRGB (0..255) and not stretched.
+#pragma once
+
+#include <array>
+#include <cstdint>
+#include <functional>
+#include <string>
+
+#include "colour/stretch.hpp"
+#include "raster/target_grid.hpp"
+
+namespace tinct {
+
+// Reads red, green, blue (stored values, NaN invalid) over a window: 3 planes of w*h.
+using ColourReader = std::function<void(int col, int row, int width, int height, float* out)>;
+
+class ColourComposer {
+ public:
+  // A fixed 0..255 mapping for display-ready 8-bit colour.
+  static ColourComposer for_byte_colour();
+  // Fits the per-band percentile stretch over the whole grid, strip by strip.
+  static ColourComposer fit(const ColourReader& read, const TargetGrid& grid,
+                            const std::array<std::string, 3>& data_types, const StretchSettings& settings);
+
+  // rgb: 3 planes of n stored values. Writes 3 planes of Lab codes and clears
+  // valid[i] where any colour band is invalid.
+  void compose(const float* rgb, std::size_t n, std::uint8_t* lab, std::uint8_t* valid) const;
+  // CIE L* (0..100) of each pixel, NaN where invalid: the co-registration check's image.
+  void lightness(const float* rgb, std::size_t n, float* out) const;
+
+  const std::array<BandStretch, 3>& stretches() const { return stretches_; }
+
+ private:
+  explicit ColourComposer(std::array<BandStretch, 3> stretches) : stretches_(stretches) {}
+  void stretched(const float* rgb, std::size_t n, float* out) const;
+
+  std::array<BandStretch, 3> stretches_;
+};
+
+}  // namespace tinct

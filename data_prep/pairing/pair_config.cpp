@@ -1,0 +1,124 @@
+#include "pairing/pair_config.hpp"
+
+#include <algorithm>
+
+#include "util/log.hpp"
+#include "util/nearest_name.hpp"
+
+namespace tinct {
+namespace {
+
+void require_bands(const ConfigNode& node, const std::string& key, const std::vector<std::string>& names,
+                   const SensorProfile& profile) {
+  for (const auto& name : names) {
+    if (profile.band(name)) continue;
+    std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
+    const std::string near = nearest_name(name, profile.band_names());
+    if (!near.empty()) message += "; did you mean \"" + near + "\"?";
+    node.fail(key, message);
+  }
+}
+
+AlignSettings read_grid(const ConfigNode& node, const SensorProfile& profile, double& resolution) {
+  resolution = node.number("resolution", profile.reference_resolution, 1e-9);
+  AlignSettings align;
+  const std::vector<std::string> methods{"near", "bilinear", "cubic", "average"};
+  align.refine = resampling_from_string(node.choice("refine", methods, "bilinear"));
+  align.coarsen = resampling_from_string(node.choice("coarsen", methods, "average"));
+  node.finish();
+  return align;
+}
+
+ColourSettings read_colour(const ConfigNode& node, const std::vector<std::string>& inputs,
+                           const SensorProfile& profile) {
+  ColourSettings colour;
+  colour.from_raster = node.choice("source", {"bands", "raster"}, "bands") == "raster";
+  if (!colour.from_raster) {
+    colour.bands = node.texts("bands");
+    if (colour.bands.size() != 3) node.fail("bands", "expected three band names: red, green, blue");
+    require_bands(node, "bands", colour.bands, profile);
+  } else {
+    node.allow("bands");
+  }
+  const ConfigNode stretch = node.section("stretch");
+  colour.stretch.low_percent = stretch.number("low", 2.0, 0.0, 100.0);
+  colour.stretch.high_percent = stretch.number("high", 98.0, 0.0, 100.0);
+  colour.stretch.gamma = stretch.number("gamma", 1.0, 0.01, 100.0);
+  if (colour.stretch.high_percent <= colour.stretch.low_percent) {
+    stretch.fail("high", "must be above low");
+  }
+  stretch.finish();
+  colour.allow_input_overlap = node.flag("allow_input_overlap", false);
+  node.finish();
+  for (const auto& band : colour.bands) {
+    if (std::find(inputs.begin(), inputs.end(), band) == inputs.end()) continue;
+    if (!colour.allow_input_overlap) {
+      node.fail("bands", "input band " + band + " is also a colour band, so predicting the colour "
+                         "is trivial and teaches nothing; drop it from inputs, or set "
+                         "colour.allow_input_overlap: true if you mean it");
+    }
+    log::warning("input band " + band + " is also a colour band: the pretext task is trivial");
+  }
+  return colour;
+}
+
+CoregistrationSettings read_coregistration(const ConfigNode& node) {
+  CoregistrationSettings s;
+  s.window = static_cast<int>(node.integer("window", 256, 32, 4096));
+  s.windows = static_cast<int>(node.integer("windows", 9, 1, 100));
+  s.warn_px = node.number("warn_px", 0.5, 0.0);
+  s.limit_px = node.number("limit_px", 2.0, 0.0);
+  s.allow_large_shift = node.flag("allow_large_shift", false);
+  node.finish();
+  return s;
+}
+
+ChipPlanSettings read_chips(const ConfigNode& node) {
+  ChipPlanSettings s;
+  s.size = static_cast<int>(node.integer("size", 64, 8, 1024));
+  s.stride = static_cast<int>(node.integer("stride", s.size, 1, 4096));
+  s.random = node.choice("layout", {"grid", "random"}, "grid") == "random";
+  s.random_count = static_cast<int>(node.integer("count", 500, 1));
+  s.min_valid = node.number("min_valid", 0.9, 0.0, 1.0);
+  s.max_per_scene = static_cast<int>(node.integer("max_per_scene", 0, 0));
+  s.block_size = node.number("block_size", 5000.0, 1e-6);
+  s.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
+  node.finish();
+  return s;
+}
+
+}  // namespace
+
+PairConfig read_pair_config(const ConfigNode& root) {
+  PairConfig config;
+  config.sensor = read_sensor_reference(root, "sensor");
+  config.output = root.path("output", false);
+  config.inputs = root.texts("inputs");
+  if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
+  require_bands(root, "inputs", config.inputs, config.sensor);
+  config.align = read_grid(root.section("grid"), config.sensor, config.resolution);
+  config.colour = read_colour(root.section("colour"), config.inputs, config.sensor);
+  config.coregistration = read_coregistration(root.section("coregistration"));
+  config.chips = read_chips(root.section("chips"));
+  const auto items = root.items("scenes");
+  if (items.empty()) root.fail("scenes", "required: list at least one scene");
+  for (const auto& item : items) {
+    SceneSpec scene = read_scene_spec(item, config.sensor);
+    for (const auto& band : config.inputs) {
+      if (!scene.band(band)) item.fail("", "scene " + scene.id + " has no input band " + band);
+    }
+    for (const auto& band : config.colour.bands) {
+      if (!scene.band(band)) item.fail("", "scene " + scene.id + " has no colour band " + band);
+    }
+    if (config.colour.from_raster && !scene.colour_raster) {
+      item.fail("colour", "required: colour.source is raster, so each scene needs colour: PATH");
+    }
+    for (const auto& earlier : config.scenes) {
+      if (earlier.id == scene.id) item.fail("id", "scene id \"" + scene.id + "\" is used twice; set id:");
+    }
+    config.scenes.push_back(std::move(scene));
+  }
+  return config;
+}
+
+}  // namespace tinct

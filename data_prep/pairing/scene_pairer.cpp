@@ -1,0 +1,235 @@
+#include "pairing/scene_pairer.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <memory>
+#include <vector>
+
+#include "chips/chip_plan.hpp"
+#include "pairing/colour_composer.hpp"
+#include "pairing/coregistration_check.hpp"
+#include "raster/scene.hpp"
+#include "util/log.hpp"
+#include "util/progress.hpp"
+
+namespace tinct {
+namespace {
+
+constexpr double kVisibleMin = 400, kVisibleMax = 700;  // nm
+
+std::size_t add_band(std::vector<std::string>& bands, const std::string& name) {
+  const auto found = std::find(bands.begin(), bands.end(), name);
+  if (found != bands.end()) return static_cast<std::size_t>(found - bands.begin());
+  bands.push_back(name);
+  return bands.size() - 1;
+}
+
+// Visible bands of the scene give the luminance proxy; without any, the inputs do.
+std::vector<std::string> proxy_bands(const PairConfig& config, const SceneSpec& spec) {
+  std::vector<std::string> visible;
+  for (const auto& band : spec.bands) {
+    const SensorBand* info = config.sensor.band(band.name);
+    if (info && info->centre_nm >= kVisibleMin && info->centre_nm <= kVisibleMax) visible.push_back(band.name);
+  }
+  return visible.empty() ? config.inputs : visible;
+}
+
+// The planes a scene read returns, and where each role's bands sit among them.
+struct BandPlan {
+  std::vector<std::string> bands;
+  std::vector<std::size_t> inputs, colour, proxy;
+};
+
+BandPlan plan_bands(const PairConfig& config, const SceneSpec& spec) {
+  BandPlan plan;
+  for (const auto& b : config.inputs) plan.inputs.push_back(add_band(plan.bands, b));
+  for (const auto& b : config.colour.bands) plan.colour.push_back(add_band(plan.bands, b));
+  for (const auto& b : proxy_bands(config, spec)) plan.proxy.push_back(add_band(plan.bands, b));
+  return plan;
+}
+
+void copy_planes(const float* planes, const std::vector<std::size_t>& which, std::size_t n, float* out) {
+  for (std::size_t k = 0; k < which.size(); ++k) {
+    std::copy(planes + which[k] * n, planes + (which[k] + 1) * n, out + k * n);
+  }
+}
+
+class ScenePairer {
+ public:
+  ScenePairer(const PairConfig& config, const SceneSpec& spec)
+      : config_(config),
+        plan_(plan_bands(config, spec)),
+        scene_(spec, config.sensor, plan_.bands, config.resolution, config.align) {
+    if (config.colour.from_raster) {
+      require_overlap(Raster::open(*spec.colour_raster), scene_.grid(), "colour raster");
+      colour_raster_ = std::make_unique<AlignedSource>(*spec.colour_raster, std::vector<int>{1, 2, 3},
+                                                       scene_.grid(), config.align, std::nullopt);
+    }
+  }
+
+  const Scene& scene() const { return scene_; }
+
+  ColourReader colour_reader() const {
+    return [this](int col, int row, int w, int h, float* out) { read_colour(col, row, w, h, out); };
+  }
+
+  PlaneReader proxy_reader() const {
+    return [this](int col, int row, int w, int h, float* out) { read_proxy(col, row, w, h, out); };
+  }
+
+  ColourComposer fit_colour() const {
+    if (colour_raster_ && colour_raster_->data_type() == "Byte") return ColourComposer::for_byte_colour();
+    std::array<std::string, 3> types;
+    if (colour_raster_) {
+      types.fill(colour_raster_->data_type());
+    } else {
+      const auto all = scene_.data_types();
+      for (int b = 0; b < 3; ++b) types[b] = all[plan_.colour[b]];
+    }
+    // The stretch reads only the colour bands, through a view of its own.
+    if (colour_raster_) return ColourComposer::fit(colour_reader(), scene_.grid(), types, config_.colour.stretch);
+    const Scene colour_view(scene_.spec(), config_.sensor, config_.colour.bands, config_.resolution, config_.align);
+    const ColourReader read = [&](int col, int row, int w, int h, float* out) { colour_view.read(col, row, w, h, out); };
+    return ColourComposer::fit(read, scene_.grid(), types, config_.colour.stretch);
+  }
+
+  // Reads one window: input planes (stored values), Lab codes and validity.
+  // Returns the valid fraction.
+  double read_chip(int col, int row, const ColourComposer& composer, std::vector<float>& inputs,
+                   std::vector<std::uint8_t>& lab, std::vector<std::uint8_t>& valid) const {
+    const int size = config_.chips.size;
+    const std::size_t n = static_cast<std::size_t>(size) * size;
+    planes_.resize(plan_.bands.size() * n);
+    scene_.read(col, row, size, size, planes_.data());
+    inputs.resize(plan_.inputs.size() * n);
+    copy_planes(planes_.data(), plan_.inputs, n, inputs.data());
+    rgb_.resize(3 * n);
+    if (colour_raster_) {
+      colour_raster_->read(col, row, size, size, rgb_.data());
+    } else {
+      copy_planes(planes_.data(), plan_.colour, n, rgb_.data());
+    }
+    valid.assign(n, 1);
+    for (std::size_t k = 0; k < plan_.inputs.size(); ++k) {
+      for (std::size_t i = 0; i < n; ++i) {
+        if (!std::isfinite(inputs[k * n + i])) valid[i] = 0;
+      }
+    }
+    lab.resize(3 * n);
+    composer.compose(rgb_.data(), n, lab.data(), valid.data());
+    std::size_t count = 0;
+    for (std::uint8_t v : valid) count += v;
+    return static_cast<double>(count) / static_cast<double>(n);
+  }
+
+ private:
+  void read_colour(int col, int row, int w, int h, float* out) const {
+    if (colour_raster_) {
+      colour_raster_->read(col, row, w, h, out);
+      return;
+    }
+    const std::size_t n = static_cast<std::size_t>(w) * h;
+    std::vector<float> planes(plan_.bands.size() * n);
+    scene_.read(col, row, w, h, planes.data());
+    copy_planes(planes.data(), plan_.colour, n, out);
+  }
+
+  void read_proxy(int col, int row, int w, int h, float* out) const {
+    const std::size_t n = static_cast<std::size_t>(w) * h;
+    std::vector<float> planes(plan_.bands.size() * n);
+    scene_.read(col, row, w, h, planes.data());
+    for (std::size_t i = 0; i < n; ++i) {
+      double sum = 0;
+      for (std::size_t p : plan_.proxy) sum += planes[p * n + i];
+      out[i] = static_cast<float>(sum / plan_.proxy.size());  // NaN if any band is
+    }
+  }
+
+  const PairConfig& config_;
+  BandPlan plan_;
+  Scene scene_;
+  std::unique_ptr<AlignedSource> colour_raster_;
+  mutable std::vector<float> planes_, rgb_;
+};
+
+void store_values(const std::vector<float>& inputs, const std::vector<std::uint8_t>& valid, StorageType storage,
+                  std::vector<std::uint16_t>& u16, std::vector<float>& f32) {
+  const std::size_t n = valid.size();
+  if (storage == StorageType::uint16) {
+    u16.resize(inputs.size());
+    for (std::size_t i = 0; i < inputs.size(); ++i) {
+      const float v = inputs[i];
+      u16[i] = valid[i % n] ? static_cast<std::uint16_t>(std::clamp(std::lround(v), 0L, 65535L)) : 0;
+    }
+  } else {
+    f32.resize(inputs.size());
+    for (std::size_t i = 0; i < inputs.size(); ++i) f32[i] = valid[i % n] ? inputs[i] : 0.0f;
+  }
+}
+
+StoreScene describe(const SceneSpec& spec, const Scene& scene, const ShiftReport& shift) {
+  StoreScene entry;
+  entry.id = spec.id;
+  entry.path = spec.bands.front().file.string();
+  entry.date = spec.date;
+  entry.crs = scene.grid().crs_wkt;
+  entry.notes["colour_shift_dx_px"] = std::to_string(shift.dx_px);
+  entry.notes["colour_shift_dy_px"] = std::to_string(shift.dy_px);
+  entry.notes["colour_shift_px"] = std::to_string(shift.magnitude_px);
+  entry.notes["colour_shift_m"] = std::to_string(shift.magnitude_m);
+  entry.notes["colour_shift_windows"] = std::to_string(shift.windows);
+  entry.notes["grid_width"] = std::to_string(scene.grid().width);
+  entry.notes["grid_height"] = std::to_string(scene.grid().height);
+  return entry;
+}
+
+}  // namespace
+
+ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::uint64_t scene_number,
+                        StorageType storage, StoreWriter& writer, std::int64_t& next_index) {
+  const ScenePairer pairer(config, spec);
+  const TargetGrid& grid = pairer.scene().grid();
+  for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
+  const ColourComposer composer = pairer.fit_colour();
+  const ShiftReport shift = measure_colour_shift(pairer.proxy_reader(), pairer.colour_reader(), composer, grid,
+                                                 config.coregistration);
+  judge_shift(shift, config.coregistration, spec.id);
+
+  ScenePairing result{describe(spec, pairer.scene(), shift), {}};
+  const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
+  result.tally.planned = static_cast<std::int64_t>(windows.size());
+  const int size = config.chips.size;
+  std::vector<float> inputs, f32;
+  std::vector<std::uint16_t> u16;
+  std::vector<std::uint8_t> lab, valid;
+  Progress progress("pair " + spec.id, result.tally.planned, "chips");
+  std::int64_t seen = 0;
+  for (const ChipWindow& window : windows) {
+    progress.update(++seen);
+    if (config.chips.max_per_scene > 0 && result.tally.written >= config.chips.max_per_scene) break;
+    const double valid_fraction = pairer.read_chip(window.col, window.row, composer, inputs, lab, valid);
+    if (valid_fraction < config.chips.min_valid) {
+      ++result.tally.below_min_valid;
+      continue;
+    }
+    ChipRecord record;
+    record.index = next_index++;
+    record.scene = spec.id;
+    record.col = window.col;
+    record.row = window.row;
+    record.x = grid.geotransform[0] + (window.col + size / 2.0) * grid.geotransform[1];
+    record.y = grid.geotransform[3] + (window.row + size / 2.0) * grid.geotransform[5];
+    record.date = spec.date;
+    record.valid_fraction = valid_fraction;
+    record.block = block_of(record.x, record.y, config.chips.block_size);
+    store_values(inputs, valid, storage, u16, f32);
+    const void* bands = storage == StorageType::uint16 ? static_cast<const void*>(u16.data()) : f32.data();
+    writer.add(record, bands, lab.data(), valid.data());
+    ++result.tally.written;
+  }
+  progress.finish();
+  return result;
+}
+
+}  // namespace tinct

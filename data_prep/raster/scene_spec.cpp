@@ -1,0 +1,124 @@
+#include "raster/scene_spec.hpp"
+
+#include "raster/raster.hpp"
+#include "raster/scene_date.hpp"
+#include "util/nearest_name.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+void require_profile_band(const ConfigNode& node, const std::string& key, const std::string& name,
+                          const SensorProfile& profile) {
+  if (profile.band(name)) return;
+  std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
+  const std::string near = nearest_name(name, profile.band_names());
+  if (!near.empty()) message += "; did you mean \"" + near + "\"?";
+  node.fail(key, message);
+}
+
+std::vector<std::string> stack_band_names(const ConfigNode& item, const Raster& stack,
+                                          const SensorProfile& profile) {
+  if (item.has("bands")) {
+    const auto names = item.texts("bands");
+    if (static_cast<int>(names.size()) > stack.band_count()) {
+      item.fail("bands", std::to_string(names.size()) + " names given but " + stack.path().string() +
+                             " has " + std::to_string(stack.band_count()) + " bands");
+    }
+    for (const auto& name : names) require_profile_band(item, "bands", name, profile);
+    return names;
+  }
+  item.allow("bands");
+  std::vector<std::string> described;
+  for (int i = 1; i <= stack.band_count(); ++i) {
+    if (profile.band(stack.band(i).description)) described.push_back(stack.band(i).description);
+  }
+  if (static_cast<int>(described.size()) == stack.band_count()) return described;
+  if (stack.band_count() == static_cast<int>(profile.bands.size())) return profile.band_names();
+  item.fail("path", stack.path().string() + " has " + std::to_string(stack.band_count()) +
+                        " bands, the profile " + profile.name + " lists " +
+                        std::to_string(profile.bands.size()) +
+                        "; name the stack's bands in order with bands: [...]");
+}
+
+std::vector<SceneBand> read_stack(const ConfigNode& item, const SensorProfile& profile, fs::path& first) {
+  first = item.path("path", true);
+  const Raster stack = Raster::open(first);
+  std::vector<SceneBand> bands;
+  const auto names = stack_band_names(item, stack, profile);
+  for (std::size_t i = 0; i < names.size(); ++i) {
+    bands.push_back({names[i], first, static_cast<int>(i) + 1});
+  }
+  return bands;
+}
+
+std::vector<SceneBand> read_files(const ConfigNode& item, const SensorProfile& profile, fs::path& first) {
+  const ConfigNode files = item.section("files");
+  std::vector<SceneBand> bands;
+  for (const auto& name : files.keys()) {
+    require_profile_band(files, name, name, profile);
+    bands.push_back({name, files.path(name, true), 1});
+  }
+  if (bands.empty()) item.fail("files", "lists no band files");
+  first = bands.front().file;
+  return bands;
+}
+
+std::optional<SceneMask> read_mask(const ConfigNode& item) {
+  if (!item.has("mask")) {
+    item.allow("mask");
+    return std::nullopt;
+  }
+  const ConfigNode node = item.section("mask");
+  SceneMask mask;
+  mask.file = node.path("path", true);
+  mask.band = static_cast<int>(node.integer("band", 1, 1));
+  mask.drop = node.numbers("drop");
+  node.finish();
+  return mask;
+}
+
+}  // namespace
+
+const SceneBand* SceneSpec::band(const std::string& wanted) const {
+  for (const auto& b : bands) {
+    if (b.name == wanted) return &b;
+  }
+  return nullptr;
+}
+
+SceneSpec read_scene_spec(const ConfigNode& item, const SensorProfile& profile) {
+  SceneSpec spec;
+  const bool stacked = item.has("path");
+  if (stacked == item.has("files")) {
+    item.fail("", "give either path: (one stacked raster) or files: (band name -> file), not both");
+  }
+  fs::path first;
+  spec.bands = stacked ? read_stack(item, profile, first) : read_files(item, profile, first);
+  if (!stacked) {
+    item.allow("path");
+    item.allow("bands");
+  }
+  spec.id = item.text("id", first.stem().string());
+  if (item.has("date")) {
+    const auto date = parse_date(item.text("date"));
+    if (!date) item.fail("date", "expected a date as YYYY-MM-DD");
+    spec.date = *date;
+  } else {
+    const auto date = date_from_metadata(Raster::open(first));
+    if (!date) item.fail("date", "required: " + first.string() + " carries no acquisition date; set date: YYYY-MM-DD");
+    spec.date = *date;
+    item.text("date", spec.date);
+  }
+  spec.mask = read_mask(item);
+  if (item.has("colour")) {
+    spec.colour_raster = item.path("colour", true);
+  } else {
+    item.allow("colour");
+  }
+  item.finish();
+  return spec;
+}
+
+}  // namespace tinct
