@@ -41,3 +41,15 @@ tinct_script_test(reference_pair_resampling_vs_gdalwarp
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_resampling_vs_gdalwarp.py)
 tinct_script_test(pair_coregistration ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_coregistration.py)
 tinct_script_test(pair_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_bad_input.py)
+
+# tinct pretrain and export end to end.
+tinct_script_test(pretrain_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_runs.py)
+tinct_script_test(reference_pretrain_l7_colour ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pretrain_l7_colour.py)
+set_tests_properties(reference_pretrain_l7_colour PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# safetensors files against the format's description, read and written with numpy alone;
+# the tool writes tinct's sample and reads the script's files.
+add_executable(tinct_safetensors_tool tests/reference/safetensors_tool.cpp)
+target_link_libraries(tinct_safetensors_tool PRIVATE tinct_train)
+tinct_script_test(reference_safetensors_vs_numpy ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/safetensors_vs_numpy.py $<TARGET_FILE:tinct_safetensors_tool>)

@@ -348,8 +348,13 @@ fs::path ConfigNode::path(const std::string& key, bool must_exist,
 void ConfigNode::finish() const {
   if (!node_.IsMap()) return;
   const std::vector<std::string> known(read_keys_->begin(), read_keys_->end());
+  std::set<std::string> seen;
   for (const auto& entry : node_) {
     const std::string key = entry.first.Scalar();
+    if (!seen.insert(key).second) {
+      fail_usage(context_->name + ": " + child_path(key) + ": given twice (line " +
+                 std::to_string(entry.first.Mark().line + 1) + "); keep one");
+    }
     if (read_keys_->count(key)) continue;
     std::string message = "unknown key";
     const std::string near = nearest_name(key, known);

@@ -20,6 +20,15 @@ class RunningStats {
   }
 
   void merge(const RunningStats& other);
+  // Statistics known only by their moments (e.g. read back from a manifest); min
+  // and max stay unknown (infinite).
+  static RunningStats from_moments(std::int64_t count, double mean, double m2) {
+    RunningStats stats;
+    stats.count_ = count;
+    stats.mean_ = mean;
+    stats.m2_ = m2;
+    return stats;
+  }
 
   std::int64_t count() const { return count_; }
   double mean() const { return mean_; }

@@ -54,6 +54,14 @@ TEST_CASE("unknown keys are errors that suggest the nearest valid key") {
   CHECK_THAT(message, Contains("line 2"));
 }
 
+TEST_CASE("a key given twice is an error, not a silent pick") {
+  const ConfigNode root = ConfigNode::from_text("train: {lr: 0.1, batch: 4, lr: 0.2}\n", "p.yaml", ".");
+  const ConfigNode train = root.section("train");
+  train.number("lr", 0.01);
+  train.integer("batch", 1);
+  CHECK_THAT(usage_error_of([&] { train.finish(); }), Contains("train.lr: given twice"));
+}
+
 TEST_CASE("choices list the options and suggest the nearest") {
   const ConfigNode root = ConfigNode::from_text("loss: smoth_l1\n", "p.yaml", ".");
   const std::string message = usage_error_of([&] { root.choice("loss", {"l1", "smooth_l1", "l2"}); });

@@ -5,6 +5,7 @@
 
 #include "cli/commands.hpp"
 #include "pairing/pair_config.hpp"
+#include "pretrain/pretrain_config.hpp"
 #include "raster/sensor_profile.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
@@ -24,6 +25,7 @@ struct ConfigKind {
 const ConfigKind kConfigKinds[] = {
     {"sensor", [](const ConfigNode& root) { read_sensor_profile(root); }},
     {"pair", [](const ConfigNode& root) { read_pair_config(root); }},
+    {"pretrain", [](const ConfigNode& root) { read_pretrain_config(root); }},
 };
 
 void run_check(const std::string& file) {

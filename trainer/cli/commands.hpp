@@ -26,5 +26,7 @@ struct CommandEntry {
 CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_check(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_pair(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_pretrain(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_export(CLI::App& command, const GlobalOptions& global);
 
 }  // namespace tinct

@@ -17,6 +17,9 @@ const tinct::CommandEntry kCommands[] = {
     {"survey", "Describe rasters: grid, CRS and exact per-band statistics", tinct::setup_survey},
     {"pair", "Pair unlabelled band stacks with co-registered colour into a store of chips",
      tinct::setup_pair},
+    {"pretrain", "Pretrain a band-to-colour encoder-decoder on pair stores (self-supervised)",
+     tinct::setup_pretrain},
+    {"export", "Write a pretrained encoder as safetensors for other tools", tinct::setup_export},
     {"check", "Validate a config without running it and print it with every default filled in",
      tinct::setup_check},
 };

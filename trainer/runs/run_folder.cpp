@@ -59,6 +59,7 @@ std::string to_string(RunStatus status) {
   switch (status) {
     case RunStatus::running: return "running";
     case RunStatus::done: return "done";
+    case RunStatus::stopped: return "stopped";
     case RunStatus::failed: return "failed";
   }
   return "unknown";

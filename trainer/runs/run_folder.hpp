@@ -10,7 +10,7 @@
 
 namespace tinct {
 
-enum class RunStatus { running, done, failed };
+enum class RunStatus { running, done, stopped, failed };  // stopped: ended early on request, resumable
 
 struct RunOpening {
   bool force = false;   // start over in a run folder that exists

@@ -1,0 +1,72 @@
+#include "batches/chip_collection.hpp"
+
+#include "util/error.hpp"
+#include "util/running_stats.hpp"
+
+namespace tinct {
+namespace {
+
+// Chan's merge needs only (n, mean, M2), and M2 = n * population variance.
+RunningStats stats_from(const BandStatistics& s) {
+  return RunningStats::from_moments(s.count, s.mean, s.std * s.std * static_cast<double>(s.count));
+}
+
+}  // namespace
+
+BandNormalisation merge_statistics(const std::vector<const StoreManifest*>& manifests) {
+  BandNormalisation result;
+  const StoreManifest& first = *manifests.front();
+  for (std::size_t b = 0; b < first.bands.size(); ++b) {
+    RunningStats total;
+    for (const StoreManifest* manifest : manifests) total.merge(stats_from(manifest->statistics[b]));
+    result.bands.push_back(first.bands[b].name);
+    result.mean.push_back(total.mean());
+    const double std = total.population_std();
+    result.std.push_back(std > 0 ? std : 1.0);  // a constant band: centre it, do not divide by 0
+  }
+  return result;
+}
+
+ChipCollection::ChipCollection(const std::vector<std::filesystem::path>& stores) {
+  if (stores.empty()) fail_usage("no chip store given");
+  for (const auto& path : stores) stores_.push_back(StoreReader::open(path));
+  const StoreReader& first = stores_.front();
+  chip_size_ = first.chip_size();
+  std::vector<const StoreManifest*> manifests;
+  for (const StoreReader& store : stores_) {
+    if (store.chip_size() != chip_size_) {
+      fail_runtime(store.path().string() + ": chips of " + std::to_string(store.chip_size()) + " px, but " +
+                   first.path().string() + " has " + std::to_string(chip_size_) + " px; pair all stores alike");
+    }
+    if (store.manifest().bands.size() != first.manifest().bands.size()) {
+      fail_runtime(store.path().string() + ": its bands differ from " + first.path().string() + "'s");
+    }
+    for (std::size_t b = 0; b < first.manifest().bands.size(); ++b) {
+      if (store.manifest().bands[b].name != first.manifest().bands[b].name) {
+        fail_runtime(store.path().string() + ": band " + std::to_string(b + 1) + " is " +
+                     store.manifest().bands[b].name + ", but " + first.path().string() + " has " +
+                     first.manifest().bands[b].name + "; all stores need the same bands in the same order");
+      }
+    }
+    manifests.push_back(&store.manifest());
+  }
+  normalisation_ = merge_statistics(manifests);
+}
+
+std::vector<ChipRef> ChipCollection::all() const {
+  std::vector<ChipRef> refs;
+  for (std::size_t s = 0; s < stores_.size(); ++s) {
+    for (std::int64_t c = 0; c < stores_[s].chip_count(); ++c) refs.push_back({static_cast<int>(s), c});
+  }
+  return refs;
+}
+
+std::int64_t ChipCollection::size() const {
+  std::int64_t total = 0;
+  for (const StoreReader& store : stores_) total += store.chip_count();
+  return total;
+}
+
+std::string ChipCollection::block_of(const ChipRef& ref) const { return store(ref.store).record(ref.chip).block; }
+
+}  // namespace tinct

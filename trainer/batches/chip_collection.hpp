@@ -1,0 +1,50 @@
+// Several chip stores (one per shard or region) seen as one collection: same band
+// list, chip size and storage checked across stores, band statistics merged over
+// all of them (Chan et al. merge of count, mean and std), chips addressed by
+// (store, chip). No LibTorch here: the batch loader turns chips into tensors.
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "chips/store_reader.hpp"
+
+namespace tinct {
+
+struct ChipRef {
+  int store = 0;
+  std::int64_t chip = 0;
+};
+
+struct BandNormalisation {
+  std::vector<std::string> bands;
+  std::vector<double> mean;  // reflectance units
+  std::vector<double> std;
+};
+
+class ChipCollection {
+ public:
+  // Fails (runtime) when a store is missing or stores disagree on bands or size.
+  explicit ChipCollection(const std::vector<std::filesystem::path>& stores);
+
+  const std::vector<std::string>& band_names() const { return normalisation_.bands; }
+  int chip_size() const { return chip_size_; }
+  int band_count() const { return static_cast<int>(normalisation_.bands.size()); }
+  const BandNormalisation& normalisation() const { return normalisation_; }
+  std::vector<ChipRef> all() const;
+  std::int64_t size() const;
+  const StoreReader& store(int index) const { return stores_.at(static_cast<std::size_t>(index)); }
+  std::string block_of(const ChipRef& ref) const;  // scene-independent spatial block id
+
+ private:
+  std::vector<StoreReader> stores_;
+  BandNormalisation normalisation_;
+  int chip_size_ = 0;
+};
+
+// Normalisation from a merged set of per-store statistics (exposed for tests).
+BandNormalisation merge_statistics(const std::vector<const StoreManifest*>& manifests);
+
+}  // namespace tinct

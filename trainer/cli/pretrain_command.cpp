@@ -1,0 +1,42 @@
+// tinct pretrain CONFIG: self-supervised band-to-colour pretraining into a run folder.
+#include "cli/commands.hpp"
+#include "pretrain/pretrain_config.hpp"
+#include "pretrain/pretrain_job.hpp"
+#include "util/config_node.hpp"
+
+namespace tinct {
+
+struct PretrainCommandOptions {
+  std::string config;
+  bool resume = false;
+  bool force = false;
+  std::int64_t stop_after = 0;
+};
+
+static void run_pretrain_command(const PretrainCommandOptions& options) {
+  const ConfigNode root = ConfigNode::load(options.config);
+  root.choice("config", {"pretrain"});
+  const PretrainConfig config = read_pretrain_config(root);
+  root.finish();
+  PretrainOptions job;
+  job.resume = options.resume;
+  job.force = options.force;
+  job.stop_after = options.stop_after;
+  job.resolved_config = resolved_text(root);
+  run_pretrain(config, job);
+}
+
+CommandRun setup_pretrain(CLI::App& command, const GlobalOptions&) {
+  auto options = std::make_shared<PretrainCommandOptions>();
+  command.add_option("config", options->config, "Pretrain config (YAML, config: pretrain)")->required();
+  CLI::Option* resume = command.add_flag("--resume", options->resume, "Continue the run from its last checkpoint");
+  CLI::Option* force = command.add_flag("--force", options->force, "Start the run over, deleting what its folder holds");
+  resume->excludes(force);
+  command.add_option("--stop-after", options->stop_after,
+                     "Stop after this many steps in all (with a checkpoint), e.g. to fit a time slot; "
+                     "--resume continues")
+      ->check(CLI::PositiveNumber);
+  return [options] { run_pretrain_command(*options); };
+}
+
+}  // namespace tinct

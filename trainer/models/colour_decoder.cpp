@@ -1,0 +1,93 @@
+#include "models/colour_decoder.hpp"
+
+#include <torch/torch.h>
+
+#include <algorithm>
+
+#include "models/encoder.hpp"
+#include "util/error.hpp"
+
+namespace tinct {
+namespace {
+
+constexpr std::int64_t kMinStepChannels = 8;
+
+bool is_power_of_two(std::int64_t value) { return value > 0 && (value & (value - 1)) == 0; }
+
+}  // namespace
+
+DecoderStepImpl::DecoderStepImpl(std::int64_t in_channels, std::int64_t skip_channels,
+                                 std::int64_t channels)
+    : conv(torch::nn::Conv2d(
+          torch::nn::Conv2dOptions(in_channels + skip_channels, channels, /*kernel_size=*/3)
+              .padding(1)
+              .bias(false))),
+      bn(torch::nn::BatchNorm2d(torch::nn::BatchNorm2dOptions(channels))) {
+  register_module("conv", conv);
+  register_module("bn", bn);
+}
+
+torch::Tensor DecoderStepImpl::forward(torch::Tensor x, const torch::Tensor& skip) {
+  namespace F = torch::nn::functional;
+  // (B, Cin, h, w) -> (B, Cin, 2h, 2w)
+  x = F::interpolate(x, F::InterpolateFuncOptions()
+                            .size(std::vector<std::int64_t>{2 * x.size(2), 2 * x.size(3)})
+                            .mode(torch::kBilinear)
+                            .align_corners(false));
+  // -> (B, Cin + Cskip, 2h, 2w)
+  if (skip.defined()) x = torch::cat({x, skip}, /*dim=*/1);
+  // -> (B, C, 2h, 2w)
+  x = torch::relu(bn(conv(x)));
+  return x;
+}
+
+ColourDecoderImpl::ColourDecoderImpl(const std::vector<std::int64_t>& stage_channels,
+                                     const std::vector<std::int64_t>& stage_strides,
+                                     const DecoderSpec& spec)
+    : output_channels_(decoder_output_channels(spec)) {
+  if (stage_channels.empty() || stage_channels.size() != stage_strides.size()) {
+    fail_usage("model: the decoder needs one channel count and one stride per encoder stage");
+  }
+  for (std::size_t i = 0; i < stage_strides.size(); ++i) {
+    if (!is_power_of_two(stage_strides[i]) || (i > 0 && stage_strides[i] < stage_strides[i - 1])) {
+      fail_usage("model: encoder strides must be powers of 2, shallow to deep");
+    }
+  }
+  std::int64_t in_channels = stage_channels.back();
+  std::int64_t channels = spec.channels > 0 ? spec.channels : in_channels / 2;
+  for (std::int64_t stride = stage_strides.back() / 2; stride >= 1; stride /= 2) {
+    channels = std::max(channels, kMinStepChannels);
+    // The deepest encoder stage at this stride (the last one is the decoder's input).
+    int skip = -1;
+    for (std::size_t i = 0; i + 1 < stage_strides.size(); ++i) {
+      if (spec.skips && stage_strides[i] == stride) skip = static_cast<int>(i);
+    }
+    const std::int64_t skip_channels = skip >= 0 ? stage_channels[skip] : 0;
+    steps_.push_back(register_module("up" + std::to_string(stride),
+                                     DecoderStep(in_channels, skip_channels, channels)));
+    skip_stage_.push_back(skip);
+    in_channels = channels;
+    channels /= 2;
+  }
+  // The steps get torchvision's init; the 1x1 head keeps LibTorch's default (fan_in based),
+  // so the first outputs stay small beside targets scaled to about [-1, 1].
+  init_conv_bn(*this);
+  head = register_module(
+      "head", torch::nn::Conv2d(torch::nn::Conv2dOptions(in_channels, output_channels_,
+                                                         /*kernel_size=*/1)));
+}
+
+torch::Tensor ColourDecoderImpl::forward(const std::vector<torch::Tensor>& stages) {
+  // (B, Cdeep, H/S, W/S)
+  torch::Tensor x = stages.back();
+  // each step: (B, C, h, w) -> (B, C', 2h, 2w); after all: (B, Clast, H, W)
+  for (std::size_t i = 0; i < steps_.size(); ++i) {
+    const int skip = skip_stage_[i];
+    x = steps_[i](x, skip >= 0 ? stages[skip] : torch::Tensor());
+  }
+  // -> (B, output_channels, H, W)
+  x = head(x);
+  return x;
+}
+
+}  // namespace tinct

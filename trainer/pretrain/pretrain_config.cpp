@@ -1,0 +1,111 @@
+#include "pretrain/pretrain_config.hpp"
+
+#include "chips/store_manifest.hpp"
+#include "util/error.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+std::vector<fs::path> read_stores(const ConfigNode& root, int& bands) {
+  std::vector<fs::path> stores;
+  for (const auto& item : root.items("stores")) {
+    fs::path path = item.scalar_text();
+    if (path.is_relative()) path = root.folder() / path;
+    path = path.lexically_normal();
+    if (!fs::exists(path / "manifest.yaml")) {
+      item.fail("", "no chip store at " + path.string() + " (relative paths are read from the config "
+                    "file's folder); make it with tinct pair");
+    }
+    stores.push_back(path);
+  }
+  if (stores.empty()) root.fail("stores", "required: list at least one pair store (made by tinct pair)");
+  const StoreManifest manifest = read_manifest(stores.front() / "manifest.yaml");
+  if (manifest.kind != StoreKind::pairs) {
+    root.fail("stores", stores.front().string() + " is a " + to_string(manifest.kind) +
+                            " store; pretraining needs pair stores (tinct pair)");
+  }
+  bands = static_cast<int>(manifest.bands.size());
+  return stores;
+}
+
+ColourLossSettings read_loss(const ConfigNode& node) {
+  ColourLossSettings loss;
+  const std::string kind = node.choice("kind", {"l1", "smooth_l1", "l2", "ab_bins"}, "smooth_l1");
+  loss.kind = kind == "l1" ? ColourLossKind::l1
+              : kind == "l2" ? ColourLossKind::l2
+              : kind == "ab_bins" ? ColourLossKind::ab_bins
+                                  : ColourLossKind::smooth_l1;
+  const auto weights = node.numbers("channel_weights", std::vector<double>{1, 1, 1});
+  if (weights.size() != 3) node.fail("channel_weights", "expected three weights: L, a, b");
+  for (int c = 0; c < 3; ++c) loss.channel_weights[c] = weights[c];
+  loss.smooth_l1_beta = node.number("beta", 0.1, 1e-6);
+  loss.ab_bins_per_axis = static_cast<int>(node.integer("ab_bins_per_axis", 10, 2, 64));
+  loss.rebalance_lambda = node.number("rebalance", 0.5, 0.0, 1.0);
+  node.finish();
+  return loss;
+}
+
+TrainSettings read_train(const ConfigNode& node) {
+  TrainSettings t;
+  t.steps = node.integer("steps", 0, 0);
+  t.epochs = node.number("epochs", 10.0, 1e-6);
+  t.batch = static_cast<int>(node.integer("batch", 32, 1, 65536));
+  t.optimizer = node.choice("optimizer", {"adamw", "sgd"}, "adamw");
+  t.lr = node.number("lr", 2e-3, 1e-12);
+  t.min_lr = node.number("min_lr", 0.0, 0.0);
+  t.weight_decay = node.number("weight_decay", 1e-2, 0.0);
+  t.momentum = node.number("momentum", 0.9, 0.0, 1.0);
+  t.warmup = node.integer("warmup", 100, 0);
+  t.clip_norm = node.number("clip_norm", 1.0, 0.0);
+  t.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
+  t.augment = node.flag("augment", true);
+  t.log_every = static_cast<int>(node.integer("log_every", 10, 1));
+  node.finish();
+  return t;
+}
+
+ValidationSettings read_validation(const ConfigNode& node) {
+  ValidationSettings v;
+  v.fraction = node.number("fraction", 0.2, 0.01, 0.9);
+  v.every = node.integer("every", 100, 0);
+  v.chips = static_cast<int>(node.integer("chips", 256, 1));
+  v.previews = static_cast<int>(node.integer("previews", 8, 0, 64));
+  node.finish();
+  return v;
+}
+
+CheckpointSettings read_checkpoints(const ConfigNode& node) {
+  CheckpointSettings c;
+  c.every = node.integer("every", 200, 1);
+  c.keep = static_cast<int>(node.integer("keep", 3, 1));
+  node.finish();
+  return c;
+}
+
+}  // namespace
+
+PretrainConfig read_pretrain_config(const ConfigNode& root) {
+  PretrainConfig config;
+  int bands = 0;
+  config.stores = read_stores(root, bands);
+  config.output = root.path("output", false);
+  config.model = read_model_spec(root.section("model"), bands);
+  config.loss = read_loss(root.section("loss"));
+  // The loss decides what the decoder outputs; a model section that says otherwise is a mistake.
+  const bool bins = config.loss.kind == ColourLossKind::ab_bins;
+  if (!bins && config.model.decoder.output == "ab_bins") {
+    root.section("model").fail("output", "ab_bins outputs need loss.kind: ab_bins");
+  }
+  if (bins) {
+    config.model.decoder.output = "ab_bins";
+    config.model.decoder.ab_bins_per_axis = config.loss.ab_bins_per_axis;
+  }
+  config.train = read_train(root.section("train"));
+  config.validation = read_validation(root.section("validation"));
+  config.checkpoints = read_checkpoints(root.section("checkpoints"));
+  return config;
+}
+
+}  // namespace tinct
