@@ -1,10 +1,12 @@
 #!/usr/bin/env bash
 # Speed and memory figures of tinct against their floors and naive baselines,
-# measured in one run on this machine and printed as a table. Not a test: the
+# measured in one run on this machine and printed as tables. Not a test: the
 # goals are printed beside the figures, nothing fails on a slow machine.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh > /dev/null
+cmake --build build -j"$(nproc)" --target tinct_train_bench > /dev/null
 work=${TINCT_BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
 /usr/bin/python3 scripts/bench/pair_bench.py "$PWD/build/tinct" "$work"
+/usr/bin/python3 scripts/bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"

@@ -29,10 +29,20 @@ add_test(NAME make_colour_reference
 set_tests_properties(make_colour_reference PROPERTIES
   FIXTURES_SETUP colour_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
 
-add_executable(tinct_reference_tests tests/reference/test_colour_reference.cpp)
-target_link_libraries(tinct_reference_tests PRIVATE tinct_data tinct_catch_main)
+# Classification metrics against scikit-learn and numpy the same way (fixture metrics_reference).
+add_test(NAME make_metrics_reference
+         COMMAND ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/make_metrics_reference.py)
+set_tests_properties(make_metrics_reference PROPERTIES
+  FIXTURES_SETUP metrics_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+
+add_executable(tinct_reference_tests tests/reference/test_colour_reference.cpp
+                                     tests/reference/test_metrics_reference.cpp)
+target_link_libraries(tinct_reference_tests PRIVATE tinct_data tinct_assess tinct_catch_main)
+# Two fixtures: catch_discover_tests (Catch2 2.13) unescapes PROPERTIES three times on the way
+# to CTest, so the list's ';' needs eight backslashes (check: ctest --show-only=json-v1).
 catch_discover_tests(tinct_reference_tests PROPERTIES
-  FIXTURES_REQUIRED colour_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+  FIXTURES_REQUIRED "colour_reference\\\\\\\\;metrics_reference"
+  ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
 
 # tinct pair: real data, GDAL's own warper, co-registration and bad input.
 tinct_script_test(reference_pair_l7_vs_gdal ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_l7_vs_gdal.py)
@@ -41,6 +51,18 @@ tinct_script_test(reference_pair_resampling_vs_gdalwarp
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_resampling_vs_gdalwarp.py)
 tinct_script_test(pair_coregistration ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_coregistration.py)
 tinct_script_test(pair_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pair_bad_input.py)
+
+# tinct label: points to scene CRS against PROJ's cs2cs, real data against GDAL, date matching,
+# polygons, label rasters, vector formats and bad input.
+add_executable(tinct_point_transform_tool tests/reference/point_transform_tool.cpp)
+target_link_libraries(tinct_point_transform_tool PRIVATE tinct_data)
+tinct_script_test(reference_labels_transform_vs_cs2cs ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/labels_transform_vs_cs2cs.py $<TARGET_FILE:tinct_point_transform_tool>)
+tinct_script_test(reference_label_l7_vs_gdal ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/label_l7_vs_gdal.py)
+set_tests_properties(reference_label_l7_vs_gdal PROPERTIES FIXTURES_REQUIRED debian_data)
+tinct_script_test(label_matching ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/label_matching.py)
+tinct_script_test(label_sources ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/label_sources.py)
+tinct_script_test(label_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/label_bad_input.py)
 
 # tinct pretrain and export end to end.
 tinct_script_test(pretrain_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_runs.py)
@@ -53,3 +75,7 @@ add_executable(tinct_safetensors_tool tests/reference/safetensors_tool.cpp)
 target_link_libraries(tinct_safetensors_tool PRIVATE tinct_train)
 tinct_script_test(reference_safetensors_vs_numpy ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/safetensors_vs_numpy.py $<TARGET_FILE:tinct_safetensors_tool>)
+tinct_script_test(finetune_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/finetune_runs.py)
+tinct_script_test(reference_finetune_l7_index_rule
+  ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
+set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)

@@ -15,7 +15,6 @@ import time
 import numpy as np
 from osgeo import gdal, osr
 
-TINCT, WORK = sys.argv[1], sys.argv[2]
 SIZE, CHIP, BANDS = 4096, 64, 12
 NAMES = ["B01", "B02", "B03", "B04", "B05", "B06", "B07", "B08", "B8A", "B09", "B11", "B12"]
 
@@ -54,43 +53,48 @@ def peak_rss_mb(command):
     return int(out) / 1024
 
 
-scene = os.path.join(WORK, "bench-scene.tif")
-make_scene(scene)
-config = os.path.join(WORK, "bench-pair.yaml")
-with open(config, "w") as f:
-    f.write(f"""config: pair
-sensor: sentinel2-l2a
-output: bench.pairs
-inputs: [B01, B05, B06, B07, B08, B8A, B09, B11, B12]
-colour: {{bands: [B04, B03, B02]}}
-chips: {{size: {CHIP}, stride: {CHIP}, min_valid: 0.5}}
-scenes:
-  - {{path: {scene}, date: 2026-06-01}}
-""")
+def main(TINCT, WORK):
+    scene = os.path.join(WORK, "bench-scene.tif")
+    make_scene(scene)
+    config = os.path.join(WORK, "bench-pair.yaml")
+    with open(config, "w") as f:
+        f.write(f"""config: pair
+    sensor: sentinel2-l2a
+    output: bench.pairs
+    inputs: [B01, B05, B06, B07, B08, B8A, B09, B11, B12]
+    colour: {{bands: [B04, B03, B02]}}
+    chips: {{size: {CHIP}, stride: {CHIP}, min_valid: 0.5}}
+    scenes:
+      - {{path: {scene}, date: 2026-06-01}}
+    """)
 
-decode, _ = timed(["gdal_translate", "-q", "-of", "ENVI", scene, os.path.join(WORK, "decode.raw")])
-pair_cmd = [TINCT, "--quiet", "pair", config, "--force"]
-pair, _ = timed(pair_cmd)
-pair_peak = peak_rss_mb(pair_cmd)
-chips = (SIZE // CHIP) ** 2
-sample = 24
-start = time.perf_counter()
-for i in range(sample):
-    col, row = (i * 7 % (SIZE // CHIP)) * CHIP, (i * 13 % (SIZE // CHIP)) * CHIP
-    subprocess.run(["gdal_translate", "-q", "-of", "ENVI", "-srcwin", str(col), str(row), str(CHIP), str(CHIP),
-                    scene, os.path.join(WORK, "chip.raw")], check=True)
-naive_rate = sample / (time.perf_counter() - start)
+    decode, _ = timed(["gdal_translate", "-q", "-of", "ENVI", scene, os.path.join(WORK, "decode.raw")])
+    pair_cmd = [TINCT, "--quiet", "pair", config, "--force"]
+    pair, _ = timed(pair_cmd)
+    pair_peak = peak_rss_mb(pair_cmd)
+    chips = (SIZE // CHIP) ** 2
+    sample = 24
+    start = time.perf_counter()
+    for i in range(sample):
+        col, row = (i * 7 % (SIZE // CHIP)) * CHIP, (i * 13 % (SIZE // CHIP)) * CHIP
+        subprocess.run(["gdal_translate", "-q", "-of", "ENVI", "-srcwin", str(col), str(row), str(CHIP), str(CHIP),
+                        scene, os.path.join(WORK, "chip.raw")], check=True)
+    naive_rate = sample / (time.perf_counter() - start)
 
-rows = [
-    ("scene", f"{SIZE} x {SIZE} x {BANDS} uint16, tiled, DEFLATE", ""),
-    ("GDAL full decode (floor)", f"{decode:.2f} s", ""),
-    ("tinct pair, whole scene", f"{pair:.2f} s ({chips / pair:.0f} chips/s)", "goal <= 3x floor"),
-    ("tinct pair / decode", f"{pair / decode:.2f}x", "goal <= 3.00x"),
-    ("naive gdal_translate -srcwin", f"{naive_rate:.1f} chips/s (~{chips / naive_rate:.0f} s for the scene)", ""),
-    ("tinct pair speed-up over naive", f"{(chips / pair) / naive_rate:.0f}x", ""),
-    ("tinct pair peak resident memory", f"{pair_peak:.0f} MB", "goal < 400 MB"),
-]
-width = max(len(r[0]) for r in rows)
-print(f"\n{'pair benchmark':<{width}}  {'figure':<52} goal")
-for name, value, goal in rows:
-    print(f"{name:<{width}}  {value:<52} {goal}")
+    rows = [
+        ("scene", f"{SIZE} x {SIZE} x {BANDS} uint16, tiled, DEFLATE", ""),
+        ("GDAL full decode (floor)", f"{decode:.2f} s", ""),
+        ("tinct pair, whole scene", f"{pair:.2f} s ({chips / pair:.0f} chips/s)", "goal <= 3x floor"),
+        ("tinct pair / decode", f"{pair / decode:.2f}x", "goal <= 3.00x"),
+        ("naive gdal_translate -srcwin", f"{naive_rate:.1f} chips/s (~{chips / naive_rate:.0f} s for the scene)", ""),
+        ("tinct pair speed-up over naive", f"{(chips / pair) / naive_rate:.0f}x", ""),
+        ("tinct pair peak resident memory", f"{pair_peak:.0f} MB", "goal < 400 MB"),
+    ]
+    width = max(len(r[0]) for r in rows)
+    print(f"\n{'pair benchmark':<{width}}  {'figure':<52} goal")
+    for name, value, goal in rows:
+        print(f"{name:<{width}}  {value:<52} {goal}")
+
+
+if __name__ == "__main__":
+    main(sys.argv[1], sys.argv[2])

@@ -69,7 +69,7 @@ TEST_CASE("choices list the options and suggest the nearest") {
   CHECK_THAT(message, Contains("did you mean \"smooth_l1\""));
 }
 
-TEST_CASE("relative paths resolve against the config file's folder; missing files are reported") {
+TEST_CASE("relative paths resolve against the config file's folder and missing files are reported") {
   TempFolder folder;
   folder.write("data/scene.tif", "x");
   const auto file = folder.write("configs/pair.yaml", "scene: ../data/scene.tif\nother: nope.tif\n");

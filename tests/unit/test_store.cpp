@@ -262,7 +262,7 @@ TEST_CASE("uint16 statistics equal a direct computation over the valid pixels", 
   check_statistics(chips, shape, store.manifest(), 0);  // percentiles exact
 }
 
-TEST_CASE("float32 statistics equal a direct computation; percentiles to a bin width", "[store]") {
+TEST_CASE("float32 statistics equal a direct computation, percentiles to a bin width", "[store]") {
   TempFolder folder;
   const auto shape = layout(tinct::StorageType::float32, 16);
   const auto chips = make_chips(shape, 7, 4);

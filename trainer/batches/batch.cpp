@@ -29,6 +29,8 @@ Batch assemble_batch(const ChipCollection& collection, const std::vector<ChipRef
   batch.bands = torch::empty({count, bands, size, size}, torch::kFloat32);
   batch.valid = torch::empty({count, size, size}, torch::kBool);
   if (with_colour) batch.colour = torch::empty({count, 3, size, size}, torch::kUInt8);
+  const bool with_labels = !collection.classes().empty();
+  if (with_labels) batch.labels = torch::empty({count}, torch::kInt64);
   std::vector<float> reflectance(bands * area);
   std::vector<std::uint8_t> valid(area);
   for (std::int64_t i = 0; i < count; ++i) {
@@ -41,6 +43,7 @@ Batch assemble_batch(const ChipCollection& collection, const std::vector<ChipRef
     apply_symmetry(symmetry, store.valid(chip), valid.data(), 1, size);
     std::copy(valid.begin(), valid.end(), reinterpret_cast<std::uint8_t*>(batch.valid[i].data_ptr<bool>()));
     if (with_colour) apply_symmetry(symmetry, store.colour(chip), batch.colour[i].data_ptr<std::uint8_t>(), 3, size);
+    if (with_labels) batch.labels[i] = collection.class_of(chips[i]);
   }
   return batch;
 }

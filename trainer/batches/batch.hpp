@@ -17,6 +17,7 @@ struct Batch {
   torch::Tensor bands;   // (B, C, H, W) float32, normalised
   torch::Tensor colour;  // (B, 3, H, W) uint8 cielab8 codes (undefined for stores without colour)
   torch::Tensor valid;   // (B, H, W) bool
+  torch::Tensor labels;  // (B) int64 class index (label stores only)
   std::vector<ChipRef> chips;
 };
 

@@ -26,6 +26,7 @@ const std::vector<std::int64_t>& BatchOrder::permutation(std::int64_t epoch) con
 }
 
 std::vector<std::int64_t> BatchOrder::batch(std::int64_t step) const {
+  std::lock_guard<std::mutex> lock(mutex_);
   std::vector<std::int64_t> positions;
   for (int i = 0; i < batch_size_; ++i) {
     const std::int64_t position = step * batch_size_ + i;

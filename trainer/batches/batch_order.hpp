@@ -4,6 +4,7 @@
 #pragma once
 
 #include <cstdint>
+#include <mutex>
 #include <vector>
 
 namespace tinct {
@@ -18,11 +19,13 @@ class BatchOrder {
   std::int64_t steps_per_epoch() const;
 
  private:
+  // Callers hold mutex_: the loader thread and direct builds share the cache.
   const std::vector<std::int64_t>& permutation(std::int64_t epoch) const;
 
   std::int64_t chip_count_;
   int batch_size_;
   std::uint64_t seed_;
+  mutable std::mutex mutex_;
   mutable std::int64_t cached_epoch_ = -1;
   mutable std::vector<std::int64_t> cached_;
 };

@@ -1,5 +1,7 @@
 #include "batches/chip_collection.hpp"
 
+#include <algorithm>
+
 #include "util/error.hpp"
 #include "util/running_stats.hpp"
 
@@ -51,6 +53,46 @@ ChipCollection::ChipCollection(const std::vector<std::filesystem::path>& stores)
     manifests.push_back(&store.manifest());
   }
   normalisation_ = merge_statistics(manifests);
+  index_classes();
+}
+
+void ChipCollection::index_classes() {
+  const StoreManifest& first = stores_.front().manifest();
+  if (first.kind != StoreKind::labels) return;
+  classes_ = first.classes;
+  for (const StoreReader& store : stores_) {
+    if (store.manifest().classes != classes_) {
+      fail_runtime(store.path().string() + ": its class list differs from " + stores_.front().path().string() +
+                   "'s; make the label stores with the same labels.classes");
+    }
+    std::vector<int> indices;
+    for (std::int64_t c = 0; c < store.chip_count(); ++c) {
+      const std::string label = store.record(c).label;
+      const auto found = std::find(classes_.begin(), classes_.end(), label);
+      if (found == classes_.end()) {
+        fail_runtime(store.path().string() + ": chip " + std::to_string(c) + " has class \"" + label +
+                     "\", which the manifest does not list; rebuild the store with tinct label");
+      }
+      indices.push_back(static_cast<int>(found - classes_.begin()));
+    }
+    class_index_.push_back(std::move(indices));
+  }
+}
+
+int ChipCollection::class_of(const ChipRef& ref) const {
+  if (classes_.empty()) return -1;
+  return class_index_.at(static_cast<std::size_t>(ref.store)).at(static_cast<std::size_t>(ref.chip));
+}
+
+void ChipCollection::use_normalisation(const BandNormalisation& normalisation) {
+  if (normalisation.bands != normalisation_.bands) {
+    std::string ours, theirs;
+    for (const auto& b : normalisation_.bands) ours += (ours.empty() ? "" : ", ") + b;
+    for (const auto& b : normalisation.bands) theirs += (theirs.empty() ? "" : ", ") + b;
+    fail_usage("the stores hold bands [" + ours + "] but the encoder was trained on [" + theirs +
+               "]; make the label store with the pretraining inputs, in the same order");
+  }
+  normalisation_ = normalisation;
 }
 
 std::vector<ChipRef> ChipCollection::all() const {

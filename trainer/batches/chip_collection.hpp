@@ -33,14 +33,23 @@ class ChipCollection {
   int chip_size() const { return chip_size_; }
   int band_count() const { return static_cast<int>(normalisation_.bands.size()); }
   const BandNormalisation& normalisation() const { return normalisation_; }
+  // Normalise with other statistics (a pretrained encoder's); bands must match in order.
+  void use_normalisation(const BandNormalisation& normalisation);
   std::vector<ChipRef> all() const;
   std::int64_t size() const;
   const StoreReader& store(int index) const { return stores_.at(static_cast<std::size_t>(index)); }
   std::string block_of(const ChipRef& ref) const;  // scene-independent spatial block id
+  // Label stores: the shared class list and a chip's class index (-1 for pair stores).
+  const std::vector<std::string>& classes() const { return classes_; }
+  int class_of(const ChipRef& ref) const;
 
  private:
+  void index_classes();
+
   std::vector<StoreReader> stores_;
   BandNormalisation normalisation_;
+  std::vector<std::string> classes_;
+  std::vector<std::vector<int>> class_index_;  // per store, per chip
   int chip_size_ = 0;
 };
 

@@ -4,8 +4,10 @@
 #include <iostream>
 
 #include "cli/commands.hpp"
+#include "labels/label_config.hpp"
 #include "pairing/pair_config.hpp"
 #include "pretrain/pretrain_config.hpp"
+#include "finetune/finetune_config.hpp"
 #include "raster/sensor_profile.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
@@ -25,7 +27,9 @@ struct ConfigKind {
 const ConfigKind kConfigKinds[] = {
     {"sensor", [](const ConfigNode& root) { read_sensor_profile(root); }},
     {"pair", [](const ConfigNode& root) { read_pair_config(root); }},
+    {"label", [](const ConfigNode& root) { read_label_config(root); }},
     {"pretrain", [](const ConfigNode& root) { read_pretrain_config(root); }},
+    {"finetune", [](const ConfigNode& root) { read_finetune_config(root); }},
 };
 
 void run_check(const std::string& file) {

@@ -26,7 +26,10 @@ struct CommandEntry {
 CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_check(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_pair(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_label(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_pretrain(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_export(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_assess(CLI::App& command, const GlobalOptions& global);
 
 }  // namespace tinct

@@ -1,0 +1,207 @@
+#include "labels/label_config.hpp"
+
+#include <algorithm>
+#include <cctype>
+#include <cmath>
+#include <cstdlib>
+
+#include "raster/scene_date.hpp"
+#include "util/nearest_name.hpp"
+
+namespace tinct {
+namespace {
+
+void require_bands(const ConfigNode& node, const std::string& key, const std::vector<std::string>& names,
+                   const SensorProfile& profile) {
+  for (const auto& name : names) {
+    if (profile.band(name)) continue;
+    std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
+    const std::string near = nearest_name(name, profile.band_names());
+    if (!near.empty()) message += "; did you mean \"" + near + "\"?";
+    node.fail(key, message);
+  }
+}
+
+AlignSettings read_grid(const ConfigNode& node, const SensorProfile& profile, double& resolution) {
+  resolution = node.number("resolution", profile.reference_resolution, 1e-9);
+  AlignSettings align;
+  const std::vector<std::string> methods{"near", "bilinear", "cubic", "average"};
+  align.refine = resampling_from_string(node.choice("refine", methods, "bilinear"));
+  align.coarsen = resampling_from_string(node.choice("coarsen", methods, "average"));
+  node.finish();
+  return align;
+}
+
+bool ends_with_csv(const std::filesystem::path& path) {
+  std::string extension = path.extension().string();
+  std::transform(extension.begin(), extension.end(), extension.begin(),
+                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  return extension == ".csv";
+}
+
+// Keys that belong to another kind of source: an error when given, known otherwise.
+void refuse(const ConfigNode& node, const std::vector<std::string>& keys, const std::string& why) {
+  for (const auto& key : keys) {
+    if (node.has(key)) node.fail(key, why);
+    node.allow(key);
+  }
+}
+
+std::string optional_text(const ConfigNode& node, const std::string& key) {
+  if (node.has(key)) return node.text(key);
+  node.allow(key);
+  return "";
+}
+
+std::vector<std::pair<double, std::string>> read_raster_classes(const ConfigNode& node) {
+  std::vector<std::pair<double, std::string>> names;
+  if (!node.has("raster_classes")) {
+    node.allow("raster_classes");
+    return names;
+  }
+  if (!node.is_mapping("raster_classes")) {
+    node.fail("raster_classes", "expected a mapping of raster value -> class name, e.g. {1: breeding, 2: dry}");
+  }
+  const ConfigNode mapping = node.section("raster_classes");
+  for (const auto& key : mapping.keys()) {
+    char* end = nullptr;
+    const double value = std::strtod(key.c_str(), &end);
+    if (key.empty() || *end != '\0' || !std::isfinite(value)) {
+      mapping.fail(key, "expected a raster value (a number) as the key");
+    }
+    names.emplace_back(value, mapping.text(key));
+  }
+  mapping.finish();
+  return names;
+}
+
+void read_vector_keys(const ConfigNode& node, LabelSourceSettings& s) {
+  s.csv = ends_with_csv(s.source);
+  s.layer = optional_text(node, "layer");
+  s.class_column = node.text("class");
+  s.date_column = optional_text(node, "date");
+  s.group_column = optional_text(node, "group");
+  s.id_column = optional_text(node, "id");
+  if (s.csv) {
+    const std::string hint = "required for a CSV source: name its coordinate columns and their CRS, "
+                             "e.g. x: lon, y: lat, crs: EPSG:4326";
+    if (!node.has("x")) node.fail("x", hint);
+    if (!node.has("y")) node.fail("y", hint);
+    if (!node.has("crs")) node.fail("crs", hint);
+    s.x_column = node.text("x");
+    s.y_column = node.text("y");
+    s.crs = node.text("crs");
+    node.allow("layer");
+    if (!s.layer.empty()) node.fail("layer", "a CSV has no layers; remove layer:");
+  } else {
+    refuse(node, {"x", "y"}, "only for a CSV source; a vector source's geometry gives the position");
+    s.crs = optional_text(node, "crs");
+  }
+  s.polygon_chips = static_cast<int>(node.integer("polygon_chips", 4, 1, 10000));
+  refuse(node, {"raster_band", "raster_rule", "min_share", "raster_classes", "raster_date"},
+         "only for a label raster (labels.raster)");
+}
+
+void read_raster_keys(const ConfigNode& node, LabelSourceSettings& s) {
+  s.raster_band = static_cast<int>(node.integer("raster_band", 1, 1));
+  s.raster_rule = node.choice("raster_rule", {"centre", "majority"}, "centre") == "majority"
+                      ? RasterRule::majority
+                      : RasterRule::centre;
+  s.min_share = node.number("min_share", 0.5, 1e-9, 1.0);
+  s.raster_classes = read_raster_classes(node);
+  if (node.has("raster_date")) {
+    const auto date = parse_date(node.text("raster_date"));
+    if (!date) node.fail("raster_date", "expected the date the label raster shows, as YYYY-MM-DD");
+    s.raster_date = *date;
+  } else {
+    node.allow("raster_date");
+  }
+  refuse(node, {"layer", "class", "date", "group", "id", "x", "y", "crs", "polygon_chips"},
+         "only for a vector or CSV source (labels.source); a label raster's values are the classes");
+}
+
+LabelSourceSettings read_labels(const ConfigNode& node) {
+  LabelSourceSettings s;
+  const bool vector = node.has("source");
+  if (vector == node.has("raster")) {
+    node.fail("", "give either source: (points or polygons: any OGR vector, or a .csv) or raster: "
+                  "(a label raster), not both");
+  }
+  if (vector) {
+    s.source = node.path("source", true);
+    node.allow("raster");
+    read_vector_keys(node, s);
+  } else {
+    s.raster = node.path("raster", true);
+    node.allow("source");
+    read_raster_keys(node, s);
+  }
+  if (node.has("classes")) {
+    s.classes = node.texts("classes");
+    if (s.classes.empty()) node.fail("classes", "list at least one class, or remove classes:");
+    for (std::size_t i = 0; i < s.classes.size(); ++i) {
+      if (s.classes[i].empty()) node.fail("classes", "a class name is empty");
+      if (std::find(s.classes.begin(), s.classes.begin() + i, s.classes[i]) != s.classes.begin() + i) {
+        node.fail("classes", "class \"" + s.classes[i] + "\" is listed twice");
+      }
+    }
+  } else {
+    node.allow("classes");
+  }
+  node.finish();
+  return s;
+}
+
+MatchSettings read_match(const ConfigNode& node) {
+  MatchSettings s;
+  s.max_days = static_cast<int>(node.integer("max_days", 30, 0, 100000));
+  node.finish();
+  return s;
+}
+
+LabelChipSettings read_chips(const ConfigNode& node) {
+  LabelChipSettings s;
+  s.size = static_cast<int>(node.integer("size", 64, 8, 1024));
+  s.min_valid = node.number("min_valid", 0.9, 0.0, 1.0);
+  s.centre_valid = node.flag("centre_valid", true);
+  s.block_size = node.number("block_size", 5000.0, 1e-6);
+  s.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
+  node.finish();
+  return s;
+}
+
+}  // namespace
+
+LabelConfig read_label_config(const ConfigNode& root) {
+  LabelConfig config;
+  config.sensor = read_sensor_reference(root, "sensor");
+  config.output = root.path("output", false);
+  config.inputs = root.texts("inputs");
+  if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
+  require_bands(root, "inputs", config.inputs, config.sensor);
+  for (std::size_t i = 0; i < config.inputs.size(); ++i) {
+    const auto& band = config.inputs[i];
+    if (std::find(config.inputs.begin(), config.inputs.begin() + i, band) != config.inputs.begin() + i) {
+      root.fail("inputs", "band " + band + " is listed twice");
+    }
+  }
+  config.align = read_grid(root.section("grid"), config.sensor, config.resolution);
+  config.labels = read_labels(root.section("labels"));
+  config.match = read_match(root.section("match"));
+  config.chips = read_chips(root.section("chips"));
+  const auto items = root.items("scenes");
+  if (items.empty()) root.fail("scenes", "required: list at least one scene");
+  for (const auto& item : items) {
+    SceneSpec scene = read_scene_spec(item, config.sensor);
+    for (const auto& band : config.inputs) {
+      if (!scene.band(band)) item.fail("", "scene " + scene.id + " has no input band " + band);
+    }
+    for (const auto& earlier : config.scenes) {
+      if (earlier.id == scene.id) item.fail("id", "scene id \"" + scene.id + "\" is used twice; set id:");
+    }
+    config.scenes.push_back(std::move(scene));
+  }
+  return config;
+}
+
+}  // namespace tinct

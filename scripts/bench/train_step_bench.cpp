@@ -1,0 +1,71 @@
+// Benchmark of the training step on preloaded tensors (built only by
+// scripts/bench.sh): chips/s of forward + backward + AdamW step for a model spec,
+// the FLOP/s it achieves (3 x 2 x conv/linear MACs per chip), and a 2048 x 2048
+// float matmul in the same process as the machine's reference rate.
+//
+// usage: tinct_train_bench ENCODER BANDS CHIP BATCH STEPS [channels_last 0|1]
+#include <torch/torch.h>
+
+#include <chrono>
+#include <cstdio>
+#include <string>
+
+#include "models/colourisation_model.hpp"
+#include "models/model_stats.hpp"
+#include "runs/torch_runtime.hpp"
+
+namespace {
+
+double seconds_since(std::chrono::steady_clock::time_point start) {
+  return std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+}
+
+double matmul_gflops() {
+  const torch::Tensor a = torch::randn({2048, 2048}), b = torch::randn({2048, 2048});
+  torch::mm(a, b);  // warm-up
+  const int repeats = 10;
+  const auto start = std::chrono::steady_clock::now();
+  for (int i = 0; i < repeats; ++i) torch::mm(a, b);
+  return repeats * 2.0 * 2048.0 * 2048.0 * 2048.0 / seconds_since(start) / 1e9;
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  if (argc < 6) {
+    std::fprintf(stderr, "usage: %s ENCODER BANDS CHIP BATCH STEPS [channels_last]\n", argv[0]);
+    return 2;
+  }
+  tinct::configure_threads(0);
+  tinct::ModelSpec spec;
+  spec.encoder.name = argv[1];
+  spec.encoder.bands = std::stoi(argv[2]);
+  const int chip = std::stoi(argv[3]), batch = std::stoi(argv[4]), steps = std::stoi(argv[5]);
+  const bool channels_last = argc > 6 && std::string(argv[6]) == "1";
+  torch::manual_seed(0);
+  tinct::ColourisationModel model(spec);
+  const std::int64_t macs = tinct::conv_linear_macs(model, {1, spec.encoder.bands, chip, chip});
+  torch::optim::AdamW optimizer(model->parameters(), torch::optim::AdamWOptions(1e-3));
+  auto memory = channels_last ? torch::MemoryFormat::ChannelsLast : torch::MemoryFormat::Contiguous;
+  if (channels_last) {
+    for (auto& p : model->parameters()) {
+      if (p.dim() == 4) p.set_data(p.contiguous(memory));
+    }
+  }
+  const torch::Tensor x = torch::randn({batch, spec.encoder.bands, chip, chip}).contiguous(memory);
+  const torch::Tensor target = torch::rand({batch, 3, chip, chip});
+  const auto step = [&] {
+    const torch::Tensor loss = torch::smooth_l1_loss(model->forward(x), target);
+    optimizer.zero_grad();
+    loss.backward();
+    optimizer.step();
+  };
+  for (int i = 0; i < 3; ++i) step();  // warm-up
+  const auto start = std::chrono::steady_clock::now();
+  for (int i = 0; i < steps; ++i) step();
+  const double chips_per_s = steps * batch / seconds_since(start);
+  const double gflops = chips_per_s * 3.0 * 2.0 * static_cast<double>(macs) / 1e9;
+  std::printf("%s %.2f %.2f %.2f %lld %d\n", spec.encoder.name.c_str(), chips_per_s, gflops, matmul_gflops(),
+              static_cast<long long>(macs), tinct::threads_in_use());
+  return 0;
+}

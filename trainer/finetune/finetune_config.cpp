@@ -1,0 +1,118 @@
+#include "finetune/finetune_config.hpp"
+
+#include "chips/store_manifest.hpp"
+#include "util/error.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+std::vector<fs::path> read_label_stores(const ConfigNode& root, int& bands) {
+  std::vector<fs::path> stores;
+  for (const auto& item : root.items("stores")) {
+    fs::path path = item.scalar_text();
+    if (path.is_relative()) path = root.folder() / path;
+    path = path.lexically_normal();
+    if (!fs::exists(path / "manifest.yaml")) {
+      item.fail("", "no chip store at " + path.string() + "; make it with tinct label");
+    }
+    stores.push_back(path);
+  }
+  if (stores.empty()) root.fail("stores", "required: list at least one label store (made by tinct label)");
+  const StoreManifest manifest = read_manifest(stores.front() / "manifest.yaml");
+  if (manifest.kind != StoreKind::labels) {
+    root.fail("stores", stores.front().string() + " is a pairs store; fine-tuning needs label stores (tinct label)");
+  }
+  bands = static_cast<int>(manifest.bands.size());
+  return stores;
+}
+
+FinetuneInit read_init(const ConfigNode& node, int bands) {
+  FinetuneInit init;
+  init.pretrained = node.choice("from", {"pretrain", "scratch"}, "pretrain") == "pretrain";
+  if (init.pretrained) {
+    init.pretrain_run = node.path("run", true);
+    node.allow("model");
+    if (!fs::exists(init.pretrain_run / "encoder.pt")) {
+      node.fail("run", init.pretrain_run.string() + " holds no encoder.pt; is the pretrain run finished?");
+    }
+  } else if (node.has("run")) {
+    init.pretrain_run = node.path("run", true);  // architecture and statistics only
+    node.allow("model");
+  } else {
+    node.allow("run");
+    init.model = read_model_spec(node.section("model"), bands);
+  }
+  node.finish();
+  return init;
+}
+
+void read_freeze(const ConfigNode& node, FinetuneConfig& config) {
+  const std::string policy = node.choice("policy", {"frozen", "full", "unfreeze_after"}, "full");
+  config.freeze = policy == "frozen" ? FreezePolicy::frozen
+                  : policy == "unfreeze_after" ? FreezePolicy::unfreeze_after
+                                               : FreezePolicy::full;
+  config.unfreeze_epoch = static_cast<int>(node.integer("epochs", 5, 0));
+  config.encoder_lr_scale = node.number("encoder_lr_scale", 1.0, 0.0, 100.0);
+  node.finish();
+}
+
+// weights: balanced (N / (K n_c)), none, or a list with one weight per class.
+void read_classes(const ConfigNode& node, FinetuneConfig& config) {
+  if (node.has("weights") && !node.peek("weights")) {
+    config.class_weights = "explicit";
+    config.explicit_weights = node.numbers("weights");
+  } else {
+    config.class_weights = node.choice("weights", {"balanced", "none"}, "balanced");
+  }
+  node.finish();
+}
+
+SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
+  SplitSettings s;
+  const std::string method = node.choice("method", {"blocks", "groups", "random"}, "blocks");
+  s.method = method == "groups" ? SplitMethod::groups : method == "random" ? SplitMethod::random : SplitMethod::blocks;
+  s.block_size = node.number("block_size", 2000.0, 1e-6);
+  s.folds = static_cast<int>(node.integer("folds", 5, 2, 100));
+  s.fold = static_cast<int>(node.integer("fold", 0, 0, 99));
+  s.buffer = node.number("buffer", 0.0, 0.0);
+  s.validation_fraction = node.number("validation_fraction", 0.2, 0.05, 0.5);
+  s.seed = seed;
+  node.finish();
+  return s;
+}
+
+}  // namespace
+
+FinetuneConfig read_finetune_config(const ConfigNode& root) {
+  FinetuneConfig config;
+  int bands = 0;
+  config.stores = read_label_stores(root, bands);
+  config.output = root.path("output", false);
+  config.init = read_init(root.section("init"), bands);
+  const ConfigNode head = root.section("head");
+  config.dropout = head.number("dropout", 0.2, 0.0, 0.95);
+  config.hidden = static_cast<int>(head.integer("hidden", 0, 0, 8192));
+  head.finish();
+  read_freeze(root.section("freeze"), config);
+  read_classes(root.section("classes"), config);
+  const ConfigNode budget = root.section("budget");
+  config.budget.per_class = static_cast<int>(budget.integer("per_class", 0, 0));
+  config.budget.fraction = budget.number("fraction", 1.0, 1e-6, 1.0);
+  budget.finish();
+  const ConfigNode train = root.section("train");
+  config.epochs = static_cast<int>(train.integer("epochs", 50, 1));
+  config.batch = static_cast<int>(train.integer("batch", 16, 1, 4096));
+  config.optimizer = train.choice("optimizer", {"adamw", "sgd"}, "adamw");
+  config.lr = train.number("lr", 1e-3, 1e-12);
+  config.weight_decay = train.number("weight_decay", 1e-4, 0.0);
+  config.seed = static_cast<std::uint64_t>(train.integer("seed", 0, 0));
+  config.augment = train.flag("augment", true);
+  config.patience = static_cast<int>(train.integer("patience", 10, 1));
+  train.finish();
+  config.split = read_split(root.section("split"), config.seed);
+  return config;
+}
+
+}  // namespace tinct

@@ -1,0 +1,52 @@
+// The settings of `tinct finetune`, read from YAML (config: finetune): the label
+// stores, the initialisation (a pretrain run, or scratch with the same
+// architecture), the head, the freeze policy, class weights, label budget, the
+// split and the training schedule with early stopping.
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "finetune/label_budget.hpp"
+#include "finetune/label_split.hpp"
+#include "models/model_spec.hpp"
+#include "util/config_node.hpp"
+
+namespace tinct {
+
+enum class FreezePolicy { frozen, full, unfreeze_after };
+
+struct FinetuneInit {
+  bool pretrained = true;                  // false: scratch
+  std::filesystem::path pretrain_run;      // pretrained, or scratch "like" a run (same architecture, statistics)
+  ModelSpec model;                         // scratch without a run
+};
+
+struct FinetuneConfig {
+  std::vector<std::filesystem::path> stores;
+  std::filesystem::path output;
+  FinetuneInit init;
+  double dropout = 0.2;
+  int hidden = 0;
+  FreezePolicy freeze = FreezePolicy::full;
+  int unfreeze_epoch = 5;
+  double encoder_lr_scale = 1.0;
+  std::string class_weights = "balanced";  // balanced | none | explicit
+  std::vector<double> explicit_weights;
+  LabelBudget budget;
+  SplitSettings split;
+  int epochs = 50;
+  int batch = 16;
+  std::string optimizer = "adamw";
+  double lr = 1e-3;
+  double weight_decay = 1e-4;
+  std::uint64_t seed = 0;
+  bool augment = true;
+  int patience = 10;
+};
+
+FinetuneConfig read_finetune_config(const ConfigNode& root);
+
+}  // namespace tinct
