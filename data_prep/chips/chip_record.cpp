@@ -3,25 +3,13 @@
 #include <charconv>
 
 #include "chips/number_text.hpp"
+#include "util/csv_field.hpp"
 #include "util/error.hpp"
 
 namespace tinct {
 namespace {
 
 constexpr const char* kHint = "; the store's chips.csv is damaged or was edited: rebuild the store";
-
-void append_field(std::string& out, const std::string& field) {
-  if (field.find_first_of(",\"\r\n") == std::string::npos) {
-    out += field;
-    return;
-  }
-  out += '"';
-  for (const char c : field) {
-    if (c == '"') out += '"';
-    out += c;
-  }
-  out += '"';
-}
 
 std::string_view without_line_ending(std::string_view row) {
   if (!row.empty() && row.back() == '\n') row.remove_suffix(1);
@@ -101,16 +89,16 @@ std::string chip_csv_header(bool labelled) {
 void append_chip_row(std::string& out, const ChipRecord& record, bool labelled) {
   out += std::to_string(record.index);
   out += ',';
-  append_field(out, record.scene);
+  append_csv_field(out, record.scene);
   out += ',' + std::to_string(record.col) + ',' + std::to_string(record.row) + ',';
   out += exact_text(record.x) + ',' + exact_text(record.y) + ',';
-  append_field(out, record.date);
+  append_csv_field(out, record.date);
   out += ',' + exact_text(record.valid_fraction) + ',';
-  append_field(out, record.block);
+  append_csv_field(out, record.block);
   if (labelled) {
     for (const std::string* field : {&record.label, &record.group, &record.source_id}) {
       out += ',';
-      append_field(out, *field);
+      append_csv_field(out, *field);
     }
   }
   out += '\n';

@@ -5,32 +5,12 @@
 #include <cmath>
 #include <cstdlib>
 
+#include "raster/band_settings.hpp"
 #include "raster/scene_date.hpp"
 #include "util/nearest_name.hpp"
 
 namespace tinct {
 namespace {
-
-void require_bands(const ConfigNode& node, const std::string& key, const std::vector<std::string>& names,
-                   const SensorProfile& profile) {
-  for (const auto& name : names) {
-    if (profile.band(name)) continue;
-    std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
-    const std::string near = nearest_name(name, profile.band_names());
-    if (!near.empty()) message += "; did you mean \"" + near + "\"?";
-    node.fail(key, message);
-  }
-}
-
-AlignSettings read_grid(const ConfigNode& node, const SensorProfile& profile, double& resolution) {
-  resolution = node.number("resolution", profile.reference_resolution, 1e-9);
-  AlignSettings align;
-  const std::vector<std::string> methods{"near", "bilinear", "cubic", "average"};
-  align.refine = resampling_from_string(node.choice("refine", methods, "bilinear"));
-  align.coarsen = resampling_from_string(node.choice("coarsen", methods, "average"));
-  node.finish();
-  return align;
-}
 
 bool ends_with_csv(const std::filesystem::path& path) {
   std::string extension = path.extension().string();
@@ -178,14 +158,14 @@ LabelConfig read_label_config(const ConfigNode& root) {
   config.output = root.path("output", false);
   config.inputs = root.texts("inputs");
   if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
-  require_bands(root, "inputs", config.inputs, config.sensor);
+  require_profile_bands(root, "inputs", config.inputs, config.sensor);
   for (std::size_t i = 0; i < config.inputs.size(); ++i) {
     const auto& band = config.inputs[i];
     if (std::find(config.inputs.begin(), config.inputs.begin() + i, band) != config.inputs.begin() + i) {
       root.fail("inputs", "band " + band + " is listed twice");
     }
   }
-  config.align = read_grid(root.section("grid"), config.sensor, config.resolution);
+  config.align = read_grid_settings(root.section("grid"), config.sensor, config.resolution);
   config.labels = read_labels(root.section("labels"));
   config.match = read_match(root.section("match"));
   config.chips = read_chips(root.section("chips"));

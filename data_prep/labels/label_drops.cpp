@@ -1,22 +1,8 @@
 #include "labels/label_drops.hpp"
 
+#include "util/csv_field.hpp"
+
 namespace tinct {
-namespace {
-
-void append_field(std::string& out, const std::string& field) {
-  if (field.find_first_of(",\"\r\n") == std::string::npos) {
-    out += field;
-    return;
-  }
-  out += '"';
-  for (const char c : field) {
-    if (c == '"') out += '"';
-    out += c;
-  }
-  out += '"';
-}
-
-}  // namespace
 
 std::string to_string(DropReason reason) {
   switch (reason) {
@@ -41,13 +27,13 @@ std::filesystem::path drop_report_path(const std::filesystem::path& store) {
 std::string drop_report_csv(const std::vector<LabelDrop>& drops) {
   std::string text = "id,class,reason,detail\n";
   for (const auto& drop : drops) {
-    append_field(text, drop.id);
+    append_csv_field(text, drop.id);
     text += ',';
-    append_field(text, drop.class_name);
+    append_csv_field(text, drop.class_name);
     text += ',';
-    append_field(text, to_string(drop.reason));
+    append_csv_field(text, to_string(drop.reason));
     text += ',';
-    append_field(text, drop.detail);
+    append_csv_field(text, drop.detail);
     text += '\n';
   }
   return text;

@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "chips/chip_plan.hpp"
+#include "chips/band_storage.hpp"
 #include "chips/store_writer.hpp"
 #include "labels/label_drops.hpp"
 #include "labels/label_matcher.hpp"
@@ -22,28 +23,13 @@
 namespace tinct {
 namespace {
 
-// As tinct pair: uint16 when every input band is stored as 8- or 16-bit unsigned
-// integers (resampled values are rounded to the nearest stored unit), else float32.
-StorageType storage_for(const LabelConfig& config) {
-  for (const SceneSpec& scene : config.scenes) {
-    for (const auto& name : config.inputs) {
-      const SceneBand* band = scene.band(name);
-      const std::string type = Raster::open(band->file).band(band->index).data_type;
-      if (type != "Byte" && type != "UInt16") return StorageType::float32;
-    }
-  }
-  return StorageType::uint16;
-}
-
 StoreLayout layout_for(const LabelConfig& config, StorageType storage) {
   StoreLayout layout;
   layout.kind = StoreKind::labels;
   layout.chip_size = config.chips.size;
   layout.has_colour = false;
   layout.storage = storage;
-  for (const auto& name : config.inputs) {
-    layout.bands.push_back({name, storage, config.sensor.scale, config.sensor.effective_offset()});
-  }
+  layout.bands = store_bands(config.inputs, storage, config.sensor);
   return layout;
 }
 
@@ -54,22 +40,6 @@ LabelSet read_labels(const LabelConfig& config, std::vector<std::string>& classe
   classes = select_classes(set, listed);
   sample_polygons(set, s.polygon_chips, config.chips.seed);
   return set;
-}
-
-// Chip values as stored: uint16 rounded and clamped, float32 as read; 0 where invalid.
-const void* stored_values(const std::vector<float>& values, const std::vector<std::uint8_t>& valid,
-                          StorageType storage, std::vector<std::uint16_t>& u16, std::vector<float>& f32) {
-  const std::size_t n = valid.size();
-  if (storage == StorageType::uint16) {
-    u16.resize(values.size());
-    for (std::size_t i = 0; i < values.size(); ++i) {
-      u16[i] = valid[i % n] ? static_cast<std::uint16_t>(std::clamp(std::lround(values[i]), 0L, 65535L)) : 0;
-    }
-    return u16.data();
-  }
-  f32.resize(values.size());
-  for (std::size_t i = 0; i < values.size(); ++i) f32[i] = valid[i % n] ? values[i] : 0.0f;
-  return f32.data();
 }
 
 StoreScene describe(const SceneSpec& spec, const TargetGrid& grid) {
@@ -111,7 +81,9 @@ void log_summary(const std::vector<std::string>& classes, const std::map<std::st
 }  // namespace
 
 LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& options) {
-  const StorageType storage = storage_for(config);
+  std::vector<const SceneSpec*> scenes;
+  for (const SceneSpec& scene : config.scenes) scenes.push_back(&scene);
+  const StorageType storage = storage_for_inputs(scenes, config.inputs);
   StoreWriter writer(options.output, layout_for(config, storage), options.replace);
   std::vector<std::string> classes;
   LabelSet set = read_labels(config, classes);
@@ -147,8 +119,9 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
     record.label = label.class_name;
     record.group = label.group;
     record.source_id = label.id;
-    writer.add(record, stored_values(matcher.values(), matcher.valid(), storage, u16, f32), nullptr,
-               matcher.valid().data());
+    to_stored_values(matcher.values(), matcher.valid(), storage, u16, f32);
+    const void* bands = storage == StorageType::uint16 ? static_cast<const void*>(u16.data()) : f32.data();
+    writer.add(record, bands, nullptr, matcher.valid().data());
     used[match.choice.scene] = true;
     ++kept[label.class_name];
   }
@@ -173,7 +146,7 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
   }
   manifest.kind = StoreKind::labels;
   manifest.chip_size = size;
-  manifest.bands = layout_for(config, storage).bands;
+  manifest.bands = store_bands(config.inputs, storage, config.sensor);
   manifest.colour_encoding = ColourEncoding::none;
   manifest.crs = shared_crs(manifest.scenes);
   manifest.pixel_size = config.resolution;

@@ -2,32 +2,11 @@
 
 #include <algorithm>
 
+#include "raster/band_settings.hpp"
 #include "util/log.hpp"
-#include "util/nearest_name.hpp"
 
 namespace tinct {
 namespace {
-
-void require_bands(const ConfigNode& node, const std::string& key, const std::vector<std::string>& names,
-                   const SensorProfile& profile) {
-  for (const auto& name : names) {
-    if (profile.band(name)) continue;
-    std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
-    const std::string near = nearest_name(name, profile.band_names());
-    if (!near.empty()) message += "; did you mean \"" + near + "\"?";
-    node.fail(key, message);
-  }
-}
-
-AlignSettings read_grid(const ConfigNode& node, const SensorProfile& profile, double& resolution) {
-  resolution = node.number("resolution", profile.reference_resolution, 1e-9);
-  AlignSettings align;
-  const std::vector<std::string> methods{"near", "bilinear", "cubic", "average"};
-  align.refine = resampling_from_string(node.choice("refine", methods, "bilinear"));
-  align.coarsen = resampling_from_string(node.choice("coarsen", methods, "average"));
-  node.finish();
-  return align;
-}
 
 ColourSettings read_colour(const ConfigNode& node, const std::vector<std::string>& inputs,
                            const SensorProfile& profile) {
@@ -36,7 +15,7 @@ ColourSettings read_colour(const ConfigNode& node, const std::vector<std::string
   if (!colour.from_raster) {
     colour.bands = node.texts("bands");
     if (colour.bands.size() != 3) node.fail("bands", "expected three band names: red, green, blue");
-    require_bands(node, "bands", colour.bands, profile);
+    require_profile_bands(node, "bands", colour.bands, profile);
   } else {
     node.allow("bands");
   }
@@ -95,8 +74,8 @@ PairConfig read_pair_config(const ConfigNode& root) {
   config.output = root.path("output", false);
   config.inputs = root.texts("inputs");
   if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
-  require_bands(root, "inputs", config.inputs, config.sensor);
-  config.align = read_grid(root.section("grid"), config.sensor, config.resolution);
+  require_profile_bands(root, "inputs", config.inputs, config.sensor);
+  config.align = read_grid_settings(root.section("grid"), config.sensor, config.resolution);
   config.colour = read_colour(root.section("colour"), config.inputs, config.sensor);
   config.coregistration = read_coregistration(root.section("coregistration"));
   config.chips = read_chips(root.section("chips"));

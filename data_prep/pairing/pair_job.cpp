@@ -2,6 +2,7 @@
 
 #include <cstdio>
 
+#include "chips/band_storage.hpp"
 #include "chips/store_writer.hpp"
 #include "pairing/scene_pairer.hpp"
 #include "raster/raster.hpp"
@@ -13,28 +14,13 @@
 namespace tinct {
 namespace {
 
-// uint16 when every input band is stored as 8- or 16-bit unsigned integers
-// (resampled values are rounded to the nearest stored unit), float32 otherwise.
-StorageType storage_for(const PairConfig& config, const std::vector<const SceneSpec*>& scenes) {
-  for (const SceneSpec* scene : scenes) {
-    for (const auto& name : config.inputs) {
-      const SceneBand* band = scene->band(name);
-      const std::string type = Raster::open(band->file).band(band->index).data_type;
-      if (type != "Byte" && type != "UInt16") return StorageType::float32;
-    }
-  }
-  return StorageType::uint16;
-}
-
 StoreLayout layout_for(const PairConfig& config, StorageType storage) {
   StoreLayout layout;
   layout.kind = StoreKind::pairs;
   layout.chip_size = config.chips.size;
   layout.has_colour = true;
   layout.storage = storage;
-  for (const auto& name : config.inputs) {
-    layout.bands.push_back({name, storage, config.sensor.scale, config.sensor.effective_offset()});
-  }
+  layout.bands = store_bands(config.inputs, storage, config.sensor);
   return layout;
 }
 
@@ -74,7 +60,7 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
     scenes.push_back(&config.scenes[i]);
   }
   if (scenes.empty()) fail_usage("shard " + std::to_string(options.shard_index) + " has no scenes to pair");
-  const StorageType storage = storage_for(config, scenes);
+  const StorageType storage = storage_for_inputs(scenes, config.inputs);
   StoreWriter writer(options.output, layout_for(config, storage), options.replace);
 
   PairSummary summary;
@@ -96,7 +82,7 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
 
   manifest.kind = StoreKind::pairs;
   manifest.chip_size = config.chips.size;
-  manifest.bands = layout_for(config, storage).bands;
+  manifest.bands = store_bands(config.inputs, storage, config.sensor);
   manifest.colour_encoding = ColourEncoding::cielab8;
   manifest.crs = shared_crs(manifest.scenes);
   manifest.pixel_size = config.resolution;

@@ -6,6 +6,7 @@
 #include <memory>
 #include <vector>
 
+#include "chips/band_storage.hpp"
 #include "chips/chip_plan.hpp"
 #include "pairing/colour_composer.hpp"
 #include "pairing/coregistration_check.hpp"
@@ -153,21 +154,6 @@ class ScenePairer {
   mutable std::vector<float> planes_, rgb_;
 };
 
-void store_values(const std::vector<float>& inputs, const std::vector<std::uint8_t>& valid, StorageType storage,
-                  std::vector<std::uint16_t>& u16, std::vector<float>& f32) {
-  const std::size_t n = valid.size();
-  if (storage == StorageType::uint16) {
-    u16.resize(inputs.size());
-    for (std::size_t i = 0; i < inputs.size(); ++i) {
-      const float v = inputs[i];
-      u16[i] = valid[i % n] ? static_cast<std::uint16_t>(std::clamp(std::lround(v), 0L, 65535L)) : 0;
-    }
-  } else {
-    f32.resize(inputs.size());
-    for (std::size_t i = 0; i < inputs.size(); ++i) f32[i] = valid[i % n] ? inputs[i] : 0.0f;
-  }
-}
-
 StoreScene describe(const SceneSpec& spec, const Scene& scene, const ShiftReport& shift) {
   StoreScene entry;
   entry.id = spec.id;
@@ -223,7 +209,7 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
     record.date = spec.date;
     record.valid_fraction = valid_fraction;
     record.block = block_of(record.x, record.y, config.chips.block_size);
-    store_values(inputs, valid, storage, u16, f32);
+    to_stored_values(inputs, valid, storage, u16, f32);
     const void* bands = storage == StorageType::uint16 ? static_cast<const void*>(u16.data()) : f32.data();
     writer.add(record, bands, lab.data(), valid.data());
     ++result.tally.written;

@@ -1,22 +1,13 @@
 #include "raster/scene_spec.hpp"
 
+#include "raster/band_settings.hpp"
 #include "raster/raster.hpp"
 #include "raster/scene_date.hpp"
-#include "util/nearest_name.hpp"
 
 namespace fs = std::filesystem;
 
 namespace tinct {
 namespace {
-
-void require_profile_band(const ConfigNode& node, const std::string& key, const std::string& name,
-                          const SensorProfile& profile) {
-  if (profile.band(name)) return;
-  std::string message = "band \"" + name + "\" is not in the sensor profile " + profile.name;
-  const std::string near = nearest_name(name, profile.band_names());
-  if (!near.empty()) message += "; did you mean \"" + near + "\"?";
-  node.fail(key, message);
-}
 
 std::vector<std::string> stack_band_names(const ConfigNode& item, const Raster& stack,
                                           const SensorProfile& profile) {
@@ -26,7 +17,7 @@ std::vector<std::string> stack_band_names(const ConfigNode& item, const Raster& 
       item.fail("bands", std::to_string(names.size()) + " names given but " + stack.path().string() +
                              " has " + std::to_string(stack.band_count()) + " bands");
     }
-    for (const auto& name : names) require_profile_band(item, "bands", name, profile);
+    require_profile_bands(item, "bands", names, profile);
     return names;
   }
   item.allow("bands");
@@ -57,7 +48,7 @@ std::vector<SceneBand> read_files(const ConfigNode& item, const SensorProfile& p
   const ConfigNode files = item.section("files");
   std::vector<SceneBand> bands;
   for (const auto& name : files.keys()) {
-    require_profile_band(files, name, name, profile);
+    require_profile_bands(files, name, {name}, profile);
     bands.push_back({name, files.path(name, true), 1});
   }
   if (bands.empty()) item.fail("files", "lists no band files");

@@ -4,6 +4,8 @@ wetland with reed beds, rice paddies and dry fields (UTM 32N). Each scene is a
 12-band uint16 stack at 10 m (nodata 0) with a 20 m scene-classification mask
 whose cloud (9) and shadow (3) patches tinct drops. Invented data for the demo only.
 
+Also writes sites.csv: invented, dated larval-survey sites (breeding / non_breeding).
+
 usage: make_scenes.py OUTPUT_FOLDER [SIZE]"""
 import os
 import sys
@@ -41,6 +43,7 @@ def georeference(ds, pixel):
 
 wetness = smooth(40)
 fields = smooth(12)
+sites = []
 for date, flood in (("2026-06-14", 0.4), ("2026-08-19", -0.2)):
     wet = wetness + flood
     water = wet > 1.0
@@ -75,3 +78,20 @@ for date, flood in (("2026-06-14", 0.4), ("2026-08-19", -0.2)):
     ds.GetRasterBand(1).WriteArray(scl)
     ds = None
     print("demo scene:", stack)
+    # Invented larval-survey sites visited within a week of the acquisition: breeding
+    # habitat where the survey found larvae (flooded reed beds and paddies), none on dry fields.
+    site_rng = np.random.default_rng(len(sites) + 7)
+    for _ in range(90):
+        row, col = site_rng.integers(24, size - 24, 2)
+        patch = cover[row - 3:row + 4, col - 3:col + 4]
+        if patch.min() != patch.max() or patch[0, 0] == 0:
+            continue  # mixed ground or open water: surveys sample the edges elsewhere
+        habitat = "breeding" if patch[0, 0] in (1, 2) else "non_breeding"
+        x, y = 612000.0 + (col + 0.5) * 10, 5041000.0 - (row + 0.5) * 10
+        day = int(date[-2:]) + int(site_rng.integers(-5, 6))
+        sites.append((f"AL-{len(sites):03d}", x, y, f"{date[:8]}{day:02d}", habitat))
+with open(os.path.join(out, "sites.csv"), "w") as f:
+    f.write("site,x,y,visited,habitat\n")
+    for site in sites:
+        f.write("%s,%.1f,%.1f,%s,%s\n" % site)
+print("demo sites:", len(sites))

@@ -6,16 +6,10 @@
 #include "batches/batch.hpp"
 #include "runs/metrics_log.hpp"
 #include "util/atomic_file.hpp"
+#include "util/csv_field.hpp"
 
 namespace tinct {
 namespace {
-
-std::string csv_field(const std::string& text) {
-  if (text.find_first_of(",\"\n") == std::string::npos) return text;
-  std::string quoted = "\"";
-  for (char c : text) quoted += c == '"' ? std::string("\"\"") : std::string(1, c);
-  return quoted + "\"";
-}
 
 std::string predictions_csv(const Predictions& p, const ChipCollection& collection,
                             const std::vector<std::string>& classes) {

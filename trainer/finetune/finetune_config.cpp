@@ -1,32 +1,12 @@
 #include "finetune/finetune_config.hpp"
 
-#include "chips/store_manifest.hpp"
+#include "chips/store_list.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
 
 namespace tinct {
 namespace {
-
-std::vector<fs::path> read_label_stores(const ConfigNode& root, int& bands) {
-  std::vector<fs::path> stores;
-  for (const auto& item : root.items("stores")) {
-    fs::path path = item.scalar_text();
-    if (path.is_relative()) path = root.folder() / path;
-    path = path.lexically_normal();
-    if (!fs::exists(path / "manifest.yaml")) {
-      item.fail("", "no chip store at " + path.string() + "; make it with tinct label");
-    }
-    stores.push_back(path);
-  }
-  if (stores.empty()) root.fail("stores", "required: list at least one label store (made by tinct label)");
-  const StoreManifest manifest = read_manifest(stores.front() / "manifest.yaml");
-  if (manifest.kind != StoreKind::labels) {
-    root.fail("stores", stores.front().string() + " is a pairs store; fine-tuning needs label stores (tinct label)");
-  }
-  bands = static_cast<int>(manifest.bands.size());
-  return stores;
-}
 
 FinetuneInit read_init(const ConfigNode& node, int bands) {
   FinetuneInit init;
@@ -88,7 +68,7 @@ SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
 FinetuneConfig read_finetune_config(const ConfigNode& root) {
   FinetuneConfig config;
   int bands = 0;
-  config.stores = read_label_stores(root, bands);
+  config.stores = read_store_list(root, StoreKind::labels, bands);
   config.output = root.path("output", false);
   config.init = read_init(root.section("init"), bands);
   const ConfigNode head = root.section("head");

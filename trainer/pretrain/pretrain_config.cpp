@@ -1,34 +1,12 @@
 #include "pretrain/pretrain_config.hpp"
 
-#include "chips/store_manifest.hpp"
+#include "chips/store_list.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
 
 namespace tinct {
 namespace {
-
-std::vector<fs::path> read_stores(const ConfigNode& root, int& bands) {
-  std::vector<fs::path> stores;
-  for (const auto& item : root.items("stores")) {
-    fs::path path = item.scalar_text();
-    if (path.is_relative()) path = root.folder() / path;
-    path = path.lexically_normal();
-    if (!fs::exists(path / "manifest.yaml")) {
-      item.fail("", "no chip store at " + path.string() + " (relative paths are read from the config "
-                    "file's folder); make it with tinct pair");
-    }
-    stores.push_back(path);
-  }
-  if (stores.empty()) root.fail("stores", "required: list at least one pair store (made by tinct pair)");
-  const StoreManifest manifest = read_manifest(stores.front() / "manifest.yaml");
-  if (manifest.kind != StoreKind::pairs) {
-    root.fail("stores", stores.front().string() + " is a " + to_string(manifest.kind) +
-                            " store; pretraining needs pair stores (tinct pair)");
-  }
-  bands = static_cast<int>(manifest.bands.size());
-  return stores;
-}
 
 ColourLossSettings read_loss(const ConfigNode& node) {
   ColourLossSettings loss;
@@ -89,7 +67,7 @@ CheckpointSettings read_checkpoints(const ConfigNode& node) {
 PretrainConfig read_pretrain_config(const ConfigNode& root) {
   PretrainConfig config;
   int bands = 0;
-  config.stores = read_stores(root, bands);
+  config.stores = read_store_list(root, StoreKind::pairs, bands);
   config.output = root.path("output", false);
   config.model = read_model_spec(root.section("model"), bands);
   config.loss = read_loss(root.section("loss"));

@@ -1,6 +1,7 @@
 #include "runs/classifier_artifact.hpp"
 
 #include "util/atomic_file.hpp"
+#include "util/text_lines.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
@@ -9,23 +10,6 @@ namespace tinct {
 namespace {
 
 constexpr std::int64_t kVersion = 1;
-
-std::string lines(const std::vector<std::string>& items) {
-  std::string text;
-  for (const auto& item : items) text += (text.empty() ? "" : "\n") + item;
-  return text;
-}
-
-std::vector<std::string> split_lines(const std::string& text) {
-  std::vector<std::string> items;
-  std::size_t start = 0;
-  while (true) {
-    const std::size_t end = text.find('\n', start);
-    items.push_back(text.substr(start, end == std::string::npos ? std::string::npos : end - start));
-    if (end == std::string::npos) return items;
-    start = end + 1;
-  }
-}
 
 std::string text_of(torch::serialize::InputArchive& archive, const std::string& key) {
   c10::IValue value;
@@ -41,10 +25,10 @@ void save_classifier(const fs::path& file, const ClassifierModel& model, const C
   archive.write("format_version", c10::IValue(kVersion));
   archive.write("weights", weights);
   archive.write("model_spec", c10::IValue(model_spec_yaml(artifact.spec.model)));
-  archive.write("classes", c10::IValue(lines(artifact.classes)));
+  archive.write("classes", c10::IValue(join_lines(artifact.classes)));
   archive.write("dropout", c10::IValue(artifact.spec.dropout));
   archive.write("hidden", c10::IValue(static_cast<std::int64_t>(artifact.spec.hidden)));
-  archive.write("bands", c10::IValue(lines(artifact.normalisation.bands)));
+  archive.write("bands", c10::IValue(join_lines(artifact.normalisation.bands)));
   archive.write("band_mean", torch::tensor(artifact.normalisation.mean, torch::kFloat64));
   archive.write("band_std", torch::tensor(artifact.normalisation.std, torch::kFloat64));
   archive.write("chip_size", c10::IValue(static_cast<std::int64_t>(artifact.chip_size)));

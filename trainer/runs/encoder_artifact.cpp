@@ -3,6 +3,7 @@
 #include <torch/torch.h>
 
 #include "util/atomic_file.hpp"
+#include "util/text_lines.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
@@ -11,24 +12,6 @@ namespace tinct {
 namespace {
 
 constexpr std::int64_t kArtifactVersion = 1;
-
-std::string join(const std::vector<std::string>& names) {
-  std::string text;
-  for (const auto& name : names) text += (text.empty() ? "" : "\n") + name;
-  return text;
-}
-
-std::vector<std::string> split_lines(const std::string& text) {
-  std::vector<std::string> names;
-  std::size_t start = 0;
-  while (start <= text.size()) {
-    const std::size_t end = text.find('\n', start);
-    names.push_back(text.substr(start, end == std::string::npos ? std::string::npos : end - start));
-    if (end == std::string::npos) break;
-    start = end + 1;
-  }
-  return names;
-}
 
 torch::serialize::InputArchive open_artifact(const fs::path& file) {
   torch::serialize::InputArchive archive;
@@ -55,7 +38,7 @@ void save_encoder(const fs::path& file, const torch::nn::Module& encoder, const 
   archive.write("format_version", c10::IValue(kArtifactVersion));
   archive.write("encoder", weights);
   archive.write("model_spec", c10::IValue(artifact.model_spec_yaml));
-  archive.write("bands", c10::IValue(join(artifact.normalisation.bands)));
+  archive.write("bands", c10::IValue(join_lines(artifact.normalisation.bands)));
   archive.write("band_mean", torch::tensor(artifact.normalisation.mean, torch::kFloat64));
   archive.write("band_std", torch::tensor(artifact.normalisation.std, torch::kFloat64));
   archive.write("chip_size", c10::IValue(static_cast<std::int64_t>(artifact.chip_size)));

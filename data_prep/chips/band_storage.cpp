@@ -1,0 +1,42 @@
+#include "chips/band_storage.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include "raster/raster.hpp"
+
+namespace tinct {
+
+StorageType storage_for_inputs(const std::vector<const SceneSpec*>& scenes, const std::vector<std::string>& inputs) {
+  for (const SceneSpec* scene : scenes) {
+    for (const auto& name : inputs) {
+      const SceneBand* band = scene->band(name);
+      const std::string type = Raster::open(band->file).band(band->index).data_type;
+      if (type != "Byte" && type != "UInt16") return StorageType::float32;
+    }
+  }
+  return StorageType::uint16;
+}
+
+std::vector<StoreBand> store_bands(const std::vector<std::string>& inputs, StorageType storage,
+                                   const SensorProfile& profile) {
+  std::vector<StoreBand> bands;
+  for (const auto& name : inputs) bands.push_back({name, storage, profile.scale, profile.effective_offset()});
+  return bands;
+}
+
+void to_stored_values(const std::vector<float>& values, const std::vector<std::uint8_t>& valid, StorageType storage,
+                      std::vector<std::uint16_t>& u16, std::vector<float>& f32) {
+  const std::size_t n = valid.size();
+  if (storage == StorageType::uint16) {
+    u16.resize(values.size());
+    for (std::size_t i = 0; i < values.size(); ++i) {
+      u16[i] = valid[i % n] ? static_cast<std::uint16_t>(std::clamp(std::lround(values[i]), 0L, 65535L)) : 0;
+    }
+  } else {
+    f32.resize(values.size());
+    for (std::size_t i = 0; i < values.size(); ++i) f32[i] = valid[i % n] ? values[i] : 0.0f;
+  }
+}
+
+}  // namespace tinct
