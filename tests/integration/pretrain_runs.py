@@ -119,6 +119,18 @@ scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-0
     wild_status = yaml.safe_load(open(os.path.join(work, "runs", "wild", "run.yaml")))["status"]
     checks.check(wild_status == "failed", f"diverged run status {wild_status}")
 
+    # The ab-bin classification loss (Zhang et al. 2016) with rebalancing runs end to end.
+    bins = pretrain_config(work, "bins", extra_train="")
+    with open(bins) as f:
+        text = f.read().replace("model: {encoder: compact, width: 0.5}",
+                                "model: {encoder: compact, width: 0.5}\nloss: {kind: ab_bins, ab_bins_per_axis: 8}")
+    with open(bins, "w") as f:
+        f.write(text)
+    run = tinct("pretrain", bins)
+    checks.check(run.returncode == 0, f"ab_bins pretrain: {run.stderr[-500:]}")
+    bin_rows = list(csv.DictReader(open(os.path.join(work, "runs", "bins", "metrics.csv"))))
+    checks.check(bin_rows[-1]["val_delta_e"] != "", "ab_bins validation reports a colour difference")
+
     # Export: every tensor of the encoder, readable with numpy alone.
     out = os.path.join(work, "encoder.safetensors")
     run = tinct("export", folder, "--out", out)

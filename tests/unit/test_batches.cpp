@@ -8,6 +8,7 @@
 #include <unistd.h>
 
 #include <chrono>
+#include <cmath>
 #include <numeric>
 #include <set>
 #include <thread>
@@ -17,6 +18,7 @@
 #include "batches/batch_order.hpp"
 #include "batches/chip_symmetry.hpp"
 #include "batches/spatial_holdout.hpp"
+#include "finetune/label_split.hpp"
 #include "chips/store_writer.hpp"
 #include "runs/checkpoint.hpp"
 #include "temp_folder.hpp"
@@ -165,4 +167,82 @@ TEST_CASE("a checkpoint killed mid-write leaves the previous one loadable") {
   const auto info = tinct::load_checkpoint(first, *loaded, loaded_optimizer);
   CHECK(info.step == 1);
   CHECK(tinct::latest_checkpoint(folder.path()) == first);
+}
+
+namespace {
+
+// A label store of chips on a 10 x 10 grid of points 100 m apart; class = column parity.
+std::filesystem::path write_label_store(const std::filesystem::path& path, int side) {
+  tinct::StoreLayout layout;
+  layout.kind = tinct::StoreKind::labels;
+  layout.chip_size = 4;
+  layout.has_colour = false;
+  layout.bands = {{"nir", tinct::StorageType::uint16, 0.001, 0}};
+  tinct::StoreWriter writer(path, layout, false);
+  std::vector<std::uint16_t> bands(16, 100);
+  std::vector<std::uint8_t> valid(16, 1);
+  for (int i = 0; i < side * side; ++i) {
+    tinct::ChipRecord record;
+    record.index = i;
+    record.scene = "s";
+    record.x = 100.0 * (i % side);
+    record.y = 100.0 * (i / side);
+    record.date = "2026-01-01";
+    record.valid_fraction = 1;
+    record.block = "0_0";
+    record.label = (i % side) % 2 ? "wet" : "dry";
+    record.group = "g" + std::to_string(i / 3);
+    record.source_id = "site" + std::to_string(i);
+    writer.add(record, bands.data(), nullptr, valid.data());
+  }
+  tinct::StoreManifest header;
+  header.kind = tinct::StoreKind::labels;
+  header.pixel_size = 10;
+  header.classes = {"dry", "wet"};
+  header.scenes = {{"s", "scene.tif", "2026-01-01", "LOCAL_CS[\"test\"]", {}}};
+  writer.finish(header);
+  return path;
+}
+
+}  // namespace
+
+TEST_CASE("spatial folds partition the labels and the buffer keeps training chips away from test chips") {
+  TempFolder folder;
+  const tinct::ChipCollection chips({write_label_store(folder / "l.labels", 10)});
+  tinct::SplitSettings settings;
+  settings.block_size = 250;  // 4 x 4 blocks over the 1 km square
+  settings.folds = 4;
+  settings.buffer = 150;
+  std::multiset<std::int64_t> tested;
+  for (int fold = 0; fold < 4; ++fold) {
+    settings.fold = fold;
+    const tinct::LabelSplit split = tinct::split_labels(chips, settings);
+    for (const auto& ref : split.test) tested.insert(ref.chip);
+    for (const auto& train : split.train) {
+      const auto t = chips.store(0).record(train.chip);
+      for (const auto& test : split.test) {
+        const auto s = chips.store(0).record(test.chip);
+        CHECK(std::hypot(t.x - s.x, t.y - s.y) >= 150);
+        CHECK(tinct::split_unit(chips, train, settings) != tinct::split_unit(chips, test, settings));
+      }
+    }
+    CHECK(split.dropped_by_buffer > 0);
+  }
+  // Every chip is tested exactly once over the four folds.
+  CHECK(tested.size() == 100);
+  CHECK(std::set<std::int64_t>(tested.begin(), tested.end()).size() == 100);
+}
+
+TEST_CASE("group folds keep a group on one side, and too few chips per class is refused") {
+  TempFolder folder;
+  const tinct::ChipCollection chips({write_label_store(folder / "l.labels", 4)});
+  tinct::SplitSettings settings;
+  settings.method = tinct::SplitMethod::groups;
+  settings.folds = 3;
+  const tinct::LabelSplit split = tinct::split_labels(chips, settings);
+  std::set<std::string> test_groups;
+  for (const auto& ref : split.test) test_groups.insert(chips.store(0).record(ref.chip).group);
+  for (const auto& ref : split.train) CHECK(test_groups.count(chips.store(0).record(ref.chip).group) == 0);
+  settings.folds = 9;  // 8 chips per class
+  CHECK_THROWS_WITH(tinct::split_labels(chips, settings), Catch::Matchers::Contains("fewer than the 9 folds"));
 }

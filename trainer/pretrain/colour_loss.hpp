@@ -9,19 +9,11 @@
 
 #include <array>
 
+#include "pretrain/colour_loss_settings.hpp"
+
 namespace tinct {
 
 // B = batch, H, W = chip rows and columns, Q = number of ab bins.
-
-enum class ColourLossKind { l1, smooth_l1, l2, ab_bins };
-
-struct ColourLossSettings {
-  ColourLossKind kind = ColourLossKind::smooth_l1;
-  std::array<double, 3> channel_weights{1, 1, 1};  // L, a, b
-  double smooth_l1_beta = 0.1;                      // in scaled units; 0 is plain L1
-  int ab_bins_per_axis = 10;
-  double rebalance_lambda = 0.5;
-};
 
 // Fails (usage) on negative or all-zero weights, a negative beta, fewer than 2 bins per
 // axis or a lambda outside (0, 1].

@@ -3,6 +3,7 @@
 #include <torch/torch.h>
 
 #include <opencv2/imgcodecs.hpp>
+#include <opencv2/imgproc.hpp>
 
 #include <algorithm>
 #include <string>
@@ -15,7 +16,8 @@
 namespace tinct {
 namespace {
 
-constexpr int kGap = 2;  // pixels between tiles
+constexpr int kGap = 2;         // pixels between tiles
+constexpr int kMinTile = 96;    // small chips are enlarged (nearest neighbour) to at least this
 
 // Paints one Lab chip (L, a, b planes in Lab units) into the BGR image at (x, y).
 void paint(cv::Mat& image, int x, int y, const float* L, const float* a, const float* b, int size) {
@@ -53,6 +55,8 @@ void write_colour_preview(const std::filesystem::path& file, const at::Tensor& t
     paint(image, kGap, y, tp, tp + area, tp + 2 * area, size);
     paint(image, 2 * kGap + size, y, pp, pp + area, pp + 2 * area, size);
   }
+  const int scale = std::max(1, kMinTile / size);
+  if (scale > 1) cv::resize(image, image, cv::Size(), scale, scale, cv::INTER_NEAREST);
   std::vector<uchar> png;
   if (!cv::imencode(".png", image, png)) fail_runtime("cannot encode preview " + file.string());
   write_file_atomic(file, std::string(png.begin(), png.end()));

@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "models/model_spec.hpp"
-#include "pretrain/colour_loss.hpp"
+#include "pretrain/colour_loss_settings.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {

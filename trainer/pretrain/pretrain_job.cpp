@@ -128,7 +128,8 @@ void train(Training& t, const PretrainOptions& options) {
   const std::int64_t stop = options.stop_after > 0 ? std::min(options.stop_after, t.total) : t.total;
   const auto forward = [&](const torch::Tensor& x) { return t.model->forward(x); };
   Progress progress("pretrain", t.total, "steps");
-  auto since = std::chrono::steady_clock::now();
+  const auto started = std::chrono::steady_clock::now();
+  auto since = started;
   std::int64_t chips_since = 0;
   double loss_value = 0;
 
@@ -148,7 +149,9 @@ void train(Training& t, const PretrainOptions& options) {
 
     const std::int64_t done = step + 1;
     chips_since += batch.bands.size(0);
-    progress.update(done, "loss " + format("%.4f", loss_value));
+    const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+    progress.update(done, "loss " + format("%.4f", loss_value) + ", " +
+                              format("%.1f", (done - t.start) * c.train.batch / std::max(elapsed, 1e-9)) + " chips/s");
     const bool validate = due(done, c.validation.every, t.total);
     if (done % c.train.log_every != 0 && !validate && done != stop) continue;
     const double seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - since).count();
