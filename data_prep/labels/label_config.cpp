@@ -156,15 +156,7 @@ LabelConfig read_label_config(const ConfigNode& root) {
   LabelConfig config;
   config.sensor = read_sensor_reference(root, "sensor");
   config.output = root.path("output", false);
-  config.inputs = root.texts("inputs");
-  if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
-  require_profile_bands(root, "inputs", config.inputs, config.sensor);
-  for (std::size_t i = 0; i < config.inputs.size(); ++i) {
-    const auto& band = config.inputs[i];
-    if (std::find(config.inputs.begin(), config.inputs.begin() + i, band) != config.inputs.begin() + i) {
-      root.fail("inputs", "band " + band + " is listed twice");
-    }
-  }
+  config.inputs = read_input_bands(root, config.sensor);
   config.align = read_grid_settings(root.section("grid"), config.sensor, config.resolution);
   config.labels = read_labels(root.section("labels"));
   config.match = read_match(root.section("match"));

@@ -72,9 +72,7 @@ PairConfig read_pair_config(const ConfigNode& root) {
   PairConfig config;
   config.sensor = read_sensor_reference(root, "sensor");
   config.output = root.path("output", false);
-  config.inputs = root.texts("inputs");
-  if (config.inputs.empty()) root.fail("inputs", "name at least one input band");
-  require_profile_bands(root, "inputs", config.inputs, config.sensor);
+  config.inputs = read_input_bands(root, config.sensor);
   config.align = read_grid_settings(root.section("grid"), config.sensor, config.resolution);
   config.colour = read_colour(root.section("colour"), config.inputs, config.sensor);
   config.coregistration = read_coregistration(root.section("coregistration"));

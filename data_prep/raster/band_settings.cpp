@@ -1,5 +1,7 @@
 #include "raster/band_settings.hpp"
 
+#include <algorithm>
+
 #include "util/nearest_name.hpp"
 
 namespace tinct {
@@ -13,6 +15,18 @@ void require_profile_bands(const ConfigNode& node, const std::string& key, const
     if (!near.empty()) message += "; did you mean \"" + near + "\"?";
     node.fail(key, message);
   }
+}
+
+std::vector<std::string> read_input_bands(const ConfigNode& root, const SensorProfile& profile) {
+  const std::vector<std::string> inputs = root.texts("inputs");
+  if (inputs.empty()) root.fail("inputs", "name at least one input band");
+  require_profile_bands(root, "inputs", inputs, profile);
+  for (std::size_t i = 0; i < inputs.size(); ++i) {
+    if (std::find(inputs.begin(), inputs.begin() + static_cast<long>(i), inputs[i]) != inputs.begin() + static_cast<long>(i)) {
+      root.fail("inputs", "band " + inputs[i] + " is listed twice");
+    }
+  }
+  return inputs;
 }
 
 AlignSettings read_grid_settings(const ConfigNode& node, const SensorProfile& profile, double& resolution) {

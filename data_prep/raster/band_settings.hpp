@@ -16,6 +16,9 @@ namespace tinct {
 void require_profile_bands(const ConfigNode& node, const std::string& key, const std::vector<std::string>& names,
                            const SensorProfile& profile);
 
+// The `inputs:` list: at least one band, each in the profile, none twice.
+std::vector<std::string> read_input_bands(const ConfigNode& root, const SensorProfile& profile);
+
 // grid: {resolution (default: the profile's reference), refine, coarsen}; calls finish().
 AlignSettings read_grid_settings(const ConfigNode& node, const SensorProfile& profile, double& resolution);
 

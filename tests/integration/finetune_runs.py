@@ -17,23 +17,11 @@ import yaml
 from sklearn.metrics import cohen_kappa_score, f1_score
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
-from synthetic import Checks, texture, write  # noqa: E402
+from synthetic import Checks, texture, write, write_profile  # noqa: E402
 
 TINCT = os.environ["TINCT"]
 checks = Checks()
 SIZE, ORIGIN, PIXEL = 384, (500000.0, 5300000.0), 10.0
-PROFILE = """config: sensor
-name: test-five
-reference_resolution: 10
-nodata: 0
-scale: 0.0001
-bands:
-  - {name: blue, centre_nm: 490, width_nm: 65, resolution: 10}
-  - {name: green, centre_nm: 560, width_nm: 35, resolution: 10}
-  - {name: red, centre_nm: 665, width_nm: 30, resolution: 10}
-  - {name: nir, centre_nm: 842, width_nm: 115, resolution: 10}
-  - {name: swir, centre_nm: 1610, width_nm: 90, resolution: 10}
-"""
 
 
 def tinct(work, *args):
@@ -57,8 +45,7 @@ train: {{epochs: 25, batch: 16, lr: 0.003, seed: 3, patience: 8}}
 
 
 with tempfile.TemporaryDirectory() as work:
-    with open(os.path.join(work, "test-five.yaml"), "w") as f:
-        f.write(PROFILE)
+    write_profile(work, "test-five")
     wet = texture(SIZE, SIZE, seed=21, scale=10.0) > 0.5
     detail = texture(SIZE, SIZE, seed=22, scale=2.0)
     base = [600, 700, 800, 3000, 2500]

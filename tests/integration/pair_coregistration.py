@@ -13,22 +13,11 @@ from scipy import ndimage
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
 from store import Store  # noqa: E402
-from synthetic import Checks, texture, write  # noqa: E402
+from synthetic import VISIBLE_NIR_SWIR, Checks, texture, write, write_profile  # noqa: E402
 
 TINCT = os.environ["TINCT"]
 checks = Checks()
 SIZE = 512
-PROFILE = """config: sensor
-name: test-rgbn
-reference_resolution: 10
-nodata: 0
-scale: 0.0001
-bands:
-  - {name: blue, centre_nm: 490, width_nm: 65, resolution: 10}
-  - {name: green, centre_nm: 560, width_nm: 35, resolution: 10}
-  - {name: red, centre_nm: 665, width_nm: 30, resolution: 10}
-  - {name: nir, centre_nm: 842, width_nm: 115, resolution: 10}
-"""
 
 
 def make_pair(work, name, shift_x, shift_y):
@@ -59,8 +48,7 @@ scenes:
 
 
 with tempfile.TemporaryDirectory() as work:
-    with open(os.path.join(work, "test-rgbn.yaml"), "w") as f:
-        f.write(PROFILE)
+    write_profile(work, "test-rgbn", VISIBLE_NIR_SWIR[:4])
     for name, sx, sy in (("shifted", 1.3, 0.0), ("diagonal", 0.9, -0.9), ("aligned", 0.0, 0.0)):
         make_pair(work, name, sx, sy)
         run = pair(work, name)

@@ -14,24 +14,12 @@ import numpy as np
 import yaml
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
-from synthetic import Checks, texture, write  # noqa: E402
+from synthetic import Checks, texture, write, write_profile  # noqa: E402
 from safetensors_numpy import read_safetensors  # noqa: E402
 
 TINCT = os.environ["TINCT"]
 checks = Checks()
 
-PROFILE = """config: sensor
-name: test-five
-reference_resolution: 10
-nodata: 0
-scale: 0.0001
-bands:
-  - {name: blue, centre_nm: 490, width_nm: 65, resolution: 10}
-  - {name: green, centre_nm: 560, width_nm: 35, resolution: 10}
-  - {name: red, centre_nm: 665, width_nm: 30, resolution: 10}
-  - {name: nir, centre_nm: 842, width_nm: 115, resolution: 10}
-  - {name: swir, centre_nm: 1610, width_nm: 90, resolution: 10}
-"""
 
 
 def tinct(*args, threads=1):
@@ -58,8 +46,7 @@ checkpoints: {{every: 4, keep: 2}}
 
 
 with tempfile.TemporaryDirectory() as work:
-    with open(os.path.join(work, "test-five.yaml"), "w") as f:
-        f.write(PROFILE)
+    write_profile(work, "test-five")
     t = texture(256, 256, seed=11)
     veg = texture(256, 256, seed=12)
     bands = [(800 + 2500 * t * (0.7 + 0.1 * i) + 1500 * veg * (i >= 3)).astype(np.uint16) for i in range(5)]

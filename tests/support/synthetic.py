@@ -41,6 +41,20 @@ def write(path, bands, origin=(500000.0, 5300000.0), pixel=10.0, epsg=32632, nod
     return str(path)
 
 
+# Test sensors: (name, centre nm, width nm) at 10 m; DN scale 0.0001, nodata 0.
+VISIBLE_NIR_SWIR = [("blue", 490, 65), ("green", 560, 35), ("red", 665, 30), ("nir", 842, 115),
+                    ("swir", 1610, 90)]
+
+
+def write_profile(folder, name, bands=VISIBLE_NIR_SWIR):
+    """A sensor profile file `name`.yaml for tests; returns its file name."""
+    rows = "\n".join(f"  - {{name: {b}, centre_nm: {c}, width_nm: {w}, resolution: 10}}" for b, c, w in bands)
+    import os
+    with open(os.path.join(folder, f"{name}.yaml"), "w") as f:
+        f.write(f"config: sensor\nname: {name}\nreference_resolution: 10\nnodata: 0\nscale: 0.0001\nbands:\n{rows}\n")
+    return f"{name}.yaml"
+
+
 class Checks:
     """Counts checks and prints the closing line ctest logs: 'N passed, M failed'."""
 
