@@ -43,6 +43,10 @@ class StoreReader {
   const std::uint8_t* valid(std::int64_t chip) const;   // (size, size), 1 = valid
   // Starts reading chips first..first+count-1 from disk (for the next batch).
   void prefetch(std::int64_t first, std::int64_t count) const;
+  // Hands a chip's mapped pages back once it has been copied out, so that reading
+  // a store larger than memory keeps the resident set small (the page cache may
+  // still hold them).
+  void release(std::int64_t chip) const;
 
  private:
   StoreReader() = default;

@@ -59,14 +59,14 @@ def main(TINCT, WORK):
     config = os.path.join(WORK, "bench-pair.yaml")
     with open(config, "w") as f:
         f.write(f"""config: pair
-    sensor: sentinel2-l2a
-    output: bench.pairs
-    inputs: [B01, B05, B06, B07, B08, B8A, B09, B11, B12]
-    colour: {{bands: [B04, B03, B02]}}
-    chips: {{size: {CHIP}, stride: {CHIP}, min_valid: 0.5}}
-    scenes:
-      - {{path: {scene}, date: 2026-06-01}}
-    """)
+sensor: sentinel2-l2a
+output: bench.pairs
+inputs: [B01, B05, B06, B07, B08, B8A, B09, B11, B12]
+colour: {{bands: [B04, B03, B02]}}
+chips: {{size: {CHIP}, stride: {CHIP}, min_valid: 0.5}}
+scenes:
+  - {{path: {scene}, date: 2026-06-01}}
+""")
 
     decode, _ = timed(["gdal_translate", "-q", "-of", "ENVI", scene, os.path.join(WORK, "decode.raw")])
     pair_cmd = [TINCT, "--quiet", "pair", config, "--force"]

@@ -44,6 +44,7 @@ Batch assemble_batch(const ChipCollection& collection, const std::vector<ChipRef
     std::copy(valid.begin(), valid.end(), reinterpret_cast<std::uint8_t*>(batch.valid[i].data_ptr<bool>()));
     if (with_colour) apply_symmetry(symmetry, store.colour(chip), batch.colour[i].data_ptr<std::uint8_t>(), 3, size);
     if (with_labels) batch.labels[i] = collection.class_of(chips[i]);
+    store.release(chip);
   }
   return batch;
 }
