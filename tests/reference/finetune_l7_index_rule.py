@@ -77,7 +77,8 @@ train: {epochs: 30, batch: 16, lr: 0.002, seed: 4, patience: 10}
 """)
     for args in (["pair", "pair.yaml"], ["label", "label.yaml"], ["pretrain", "pretrain.yaml"],
                  ["finetune", "finetune.yaml"]):
-        run = subprocess.run([TINCT, *args], capture_output=True, text=True, cwd=work)
+        # One thread: ctest runs two tests at once on two cores.
+        run = subprocess.run([TINCT, "--threads", "1", *args], capture_output=True, text=True, cwd=work)
         checks.check(run.returncode == 0, f"tinct {args[0]}: exit {run.returncode}\n{run.stderr[-1500:]}")
         if run.returncode:
             checks.finish()
