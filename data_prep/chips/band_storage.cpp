@@ -25,6 +25,17 @@ std::vector<StoreBand> store_bands(const std::vector<std::string>& inputs, Stora
   return bands;
 }
 
+StoreLayout chip_store_layout(StoreKind kind, int chip_size, const std::vector<std::string>& inputs,
+                              StorageType storage, const SensorProfile& profile) {
+  StoreLayout layout;
+  layout.kind = kind;
+  layout.chip_size = chip_size;
+  layout.has_colour = kind == StoreKind::pairs;
+  layout.storage = storage;
+  layout.bands = store_bands(inputs, storage, profile);
+  return layout;
+}
+
 void to_stored_values(const std::vector<float>& values, const std::vector<std::uint8_t>& valid, StorageType storage,
                       std::vector<std::uint16_t>& u16, std::vector<float>& f32) {
   const std::size_t n = valid.size();

@@ -19,6 +19,10 @@ StorageType storage_for_inputs(const std::vector<const SceneSpec*>& scenes, cons
 std::vector<StoreBand> store_bands(const std::vector<std::string>& inputs, StorageType storage,
                                    const SensorProfile& profile);
 
+// The layout of a store of `kind` holding `inputs` (colour only for pair stores).
+StoreLayout chip_store_layout(StoreKind kind, int chip_size, const std::vector<std::string>& inputs,
+                              StorageType storage, const SensorProfile& profile);
+
 // values: planes of n pixels (NaN or anything where valid[i] is 0); fills the
 // buffer of the storage type.
 void to_stored_values(const std::vector<float>& values, const std::vector<std::uint8_t>& valid, StorageType storage,

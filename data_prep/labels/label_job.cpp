@@ -23,16 +23,6 @@
 namespace tinct {
 namespace {
 
-StoreLayout layout_for(const LabelConfig& config, StorageType storage) {
-  StoreLayout layout;
-  layout.kind = StoreKind::labels;
-  layout.chip_size = config.chips.size;
-  layout.has_colour = false;
-  layout.storage = storage;
-  layout.bands = store_bands(config.inputs, storage, config.sensor);
-  return layout;
-}
-
 LabelSet read_labels(const LabelConfig& config, std::vector<std::string>& classes) {
   const LabelSourceSettings& s = config.labels;
   LabelSet set = s.raster.empty() ? read_label_source(s) : read_label_raster(s, config.chips.size, config.resolution);
@@ -84,7 +74,9 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
   std::vector<const SceneSpec*> scenes;
   for (const SceneSpec& scene : config.scenes) scenes.push_back(&scene);
   const StorageType storage = storage_for_inputs(scenes, config.inputs);
-  StoreWriter writer(options.output, layout_for(config, storage), options.replace);
+  const StoreLayout layout =
+      chip_store_layout(StoreKind::labels, config.chips.size, config.inputs, storage, config.sensor);
+  StoreWriter writer(options.output, layout, options.replace);
   std::vector<std::string> classes;
   LabelSet set = read_labels(config, classes);
   std::vector<LabelDrop> drops = std::move(set.drops);

@@ -14,16 +14,6 @@
 namespace tinct {
 namespace {
 
-StoreLayout layout_for(const PairConfig& config, StorageType storage) {
-  StoreLayout layout;
-  layout.kind = StoreKind::pairs;
-  layout.chip_size = config.chips.size;
-  layout.has_colour = true;
-  layout.storage = storage;
-  layout.bands = store_bands(config.inputs, storage, config.sensor);
-  return layout;
-}
-
 std::string shared_crs(const std::vector<StoreScene>& scenes) {
   for (const auto& scene : scenes) {
     if (!same_crs(scene.crs, scenes.front().crs)) return "";
@@ -61,7 +51,9 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
   }
   if (scenes.empty()) fail_usage("shard " + std::to_string(options.shard_index) + " has no scenes to pair");
   const StorageType storage = storage_for_inputs(scenes, config.inputs);
-  StoreWriter writer(options.output, layout_for(config, storage), options.replace);
+  const StoreLayout layout =
+      chip_store_layout(StoreKind::pairs, config.chips.size, config.inputs, storage, config.sensor);
+  StoreWriter writer(options.output, layout, options.replace);
 
   PairSummary summary;
   StoreManifest manifest;

@@ -118,6 +118,16 @@ scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-0
     bin_rows = list(csv.DictReader(open(os.path.join(work, "runs", "bins", "metrics.csv"))))
     checks.check(bin_rows[-1]["val_delta_e"] != "", "ab_bins validation reports a colour difference")
 
+    # Threads from the config when --threads is not given (the default would be all cores).
+    threaded = pretrain_config(work, "threaded", extra_train=", threads: 1")
+    with open(threaded) as f:
+        text = f.read().replace("steps: 12", "steps: 2")
+    with open(threaded, "w") as f:
+        f.write(text)
+    run = subprocess.run([TINCT, "pretrain", threaded], capture_output=True, text=True)
+    threads = yaml.safe_load(open(os.path.join(work, "runs", "threaded", "run.yaml")))["threads"]
+    checks.check(run.returncode == 0 and threads == 1, f"train.threads sets the threads: {threads}")
+
     # Export: every tensor of the encoder, readable with numpy alone.
     out = os.path.join(work, "encoder.safetensors")
     run = tinct("export", folder, "--out", out)

@@ -2,6 +2,7 @@
 #include "cli/commands.hpp"
 #include "pretrain/pretrain_config.hpp"
 #include "pretrain/pretrain_job.hpp"
+#include "runs/torch_runtime.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {
@@ -13,11 +14,12 @@ struct PretrainCommandOptions {
   std::int64_t stop_after = 0;
 };
 
-static void run_pretrain_command(const PretrainCommandOptions& options) {
+static void run_pretrain_command(const PretrainCommandOptions& options, const GlobalOptions& global) {
   const ConfigNode root = ConfigNode::load(options.config);
   root.choice("config", {"pretrain"});
   const PretrainConfig config = read_pretrain_config(root);
   root.finish();
+  if (global.threads == 0 && config.train.threads > 0) configure_threads(config.train.threads);
   PretrainOptions job;
   job.resume = options.resume;
   job.force = options.force;
@@ -26,7 +28,7 @@ static void run_pretrain_command(const PretrainCommandOptions& options) {
   run_pretrain(config, job);
 }
 
-CommandRun setup_pretrain(CLI::App& command, const GlobalOptions&) {
+CommandRun setup_pretrain(CLI::App& command, const GlobalOptions& global) {
   auto options = std::make_shared<PretrainCommandOptions>();
   command.add_option("config", options->config, "Pretrain config (YAML, config: pretrain)")->required();
   CLI::Option* resume = command.add_flag("--resume", options->resume, "Continue the run from its last checkpoint");
@@ -36,7 +38,7 @@ CommandRun setup_pretrain(CLI::App& command, const GlobalOptions&) {
                      "Stop after this many steps in all (with a checkpoint), e.g. to fit a time slot; "
                      "--resume continues")
       ->check(CLI::PositiveNumber);
-  return [options] { run_pretrain_command(*options); };
+  return [options, &global] { run_pretrain_command(*options, global); };
 }
 
 }  // namespace tinct

@@ -90,6 +90,7 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   config.seed = static_cast<std::uint64_t>(train.integer("seed", 0, 0));
   config.augment = train.flag("augment", true);
   config.patience = static_cast<int>(train.integer("patience", 10, 1));
+  config.threads = static_cast<int>(train.integer("threads", 0, 0, 1024));
   train.finish();
   config.split = read_split(root.section("split"), config.seed);
   return config;

@@ -45,6 +45,7 @@ struct FinetuneConfig {
   std::uint64_t seed = 0;
   bool augment = true;
   int patience = 10;
+  int threads = 0;  // 0: --threads, else all cores
 };
 
 FinetuneConfig read_finetune_config(const ConfigNode& root);

@@ -60,20 +60,24 @@ torch::Tensor class_weights(const FinetuneConfig& c, const ChipCollection& chips
   return torch::tensor(weights);
 }
 
+// Two groups, so the encoder can learn at encoder_lr_scale times the head's rate.
 std::unique_ptr<torch::optim::Optimizer> make_optimizer(ClassifierModel& model, const FinetuneConfig& c) {
+  const double encoder_lr = c.lr * c.encoder_lr_scale;
   std::vector<torch::optim::OptimizerParamGroup> groups;
   if (c.optimizer == "sgd") {
-    groups.emplace_back(model->encoder->parameters(),
-                        std::make_unique<torch::optim::SGDOptions>(torch::optim::SGDOptions(c.lr * c.encoder_lr_scale)
-                                                                       .momentum(0.9).weight_decay(c.weight_decay)));
-    groups.emplace_back(model->head->parameters(), std::make_unique<torch::optim::SGDOptions>(
-                                                       torch::optim::SGDOptions(c.lr).momentum(0.9).weight_decay(c.weight_decay)));
+    const auto options = [&](double lr) {
+      return std::make_unique<torch::optim::SGDOptions>(
+          torch::optim::SGDOptions(lr).momentum(0.9).weight_decay(c.weight_decay));
+    };
+    groups.emplace_back(model->encoder->parameters(), options(encoder_lr));
+    groups.emplace_back(model->head->parameters(), options(c.lr));
     return std::make_unique<torch::optim::SGD>(groups, torch::optim::SGDOptions(c.lr));
   }
-  groups.emplace_back(model->encoder->parameters(), std::make_unique<torch::optim::AdamWOptions>(
-                                                        torch::optim::AdamWOptions(c.lr * c.encoder_lr_scale).weight_decay(c.weight_decay)));
-  groups.emplace_back(model->head->parameters(), std::make_unique<torch::optim::AdamWOptions>(
-                                                     torch::optim::AdamWOptions(c.lr).weight_decay(c.weight_decay)));
+  const auto options = [&](double lr) {
+    return std::make_unique<torch::optim::AdamWOptions>(torch::optim::AdamWOptions(lr).weight_decay(c.weight_decay));
+  };
+  groups.emplace_back(model->encoder->parameters(), options(encoder_lr));
+  groups.emplace_back(model->head->parameters(), options(c.lr));
   return std::make_unique<torch::optim::AdamW>(groups, torch::optim::AdamWOptions(c.lr));
 }
 

@@ -2,6 +2,8 @@
 // divide by max(count, 1), so an all-invalid batch gives 0 with a grad_fn instead of NaN.
 #include "pretrain/colour_loss.hpp"
 
+#include "models/ab_bins.hpp"
+
 #include <string>
 
 #include "util/error.hpp"
@@ -110,13 +112,13 @@ AbBinning::AbBinning(int per_axis_bins) : per_axis(per_axis_bins) {
 }
 
 torch::Tensor AbBinning::centres_scaled() const {
+  // The grid is the decoder's (models/ab_bins.hpp): one definition of bin k.
+  const auto grid = ab_bin_centres(per_axis);
   torch::Tensor centres = torch::empty({count(), 2}, torch::kFloat);  // (Q, 2)
   auto access = centres.accessor<float, 2>();
-  for (int ia = 0; ia < per_axis; ++ia) {
-    for (int ib = 0; ib < per_axis; ++ib) {
-      access[ia * per_axis + ib][0] = static_cast<float>(centre(ia) / kAbScale);
-      access[ia * per_axis + ib][1] = static_cast<float>(centre(ib) / kAbScale);
-    }
+  for (int k = 0; k < count(); ++k) {
+    access[k][0] = static_cast<float>(grid[static_cast<std::size_t>(k)].first / kAbScale);
+    access[k][1] = static_cast<float>(grid[static_cast<std::size_t>(k)].second / kAbScale);
   }
   return centres;
 }

@@ -40,6 +40,7 @@ TrainSettings read_train(const ConfigNode& node) {
   t.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
   t.augment = node.flag("augment", true);
   t.log_every = static_cast<int>(node.integer("log_every", 10, 1));
+  t.threads = static_cast<int>(node.integer("threads", 0, 0, 1024));
   node.finish();
   return t;
 }

@@ -28,6 +28,7 @@ struct TrainSettings {
   std::uint64_t seed = 0;
   bool augment = true;
   int log_every = 10;
+  int threads = 0;           // 0: --threads, else all cores
 };
 
 struct ValidationSettings {
