@@ -79,3 +79,6 @@ tinct_script_test(finetune_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integ
 tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# Stores: a second writer is refused while the first, stopped mid-write by strace, finishes.
+tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
