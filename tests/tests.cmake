@@ -82,3 +82,5 @@ set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIR
 
 # Stores: a second writer is refused while the first, stopped mid-write by strace, finishes.
 tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
+# --force replacement killed by strace at each of its steps; a store written onto a full tmpfs.
+tinct_script_test(store_replacement ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_replacement.py)

@@ -7,6 +7,7 @@
 #include <cstring>
 
 #include "util/error.hpp"
+#include "util/write_failure.hpp"
 
 namespace tinct {
 
@@ -40,14 +41,12 @@ void BufferedFile::write(const void* data, std::size_t size) {
 void BufferedFile::close() {
   if (fd_ < 0) return;
   flush();
-  if (::fsync(fd_) != 0) {
-    fail_runtime("cannot write " + path_.string() + ": fsync failed (" + std::strerror(errno) + ")");
+  if (::fsync(fd_) != 0 && errno != EINVAL) {
+    fail_write(path_, std::string("fsync failed: ") + std::strerror(errno), -1, written_);
   }
   const int fd = fd_;
   fd_ = -1;
-  if (::close(fd) != 0) {
-    fail_runtime("cannot write " + path_.string() + ": close failed (" + std::strerror(errno) + ")");
-  }
+  if (::close(fd) != 0) fail_write(path_, std::string("close failed: ") + std::strerror(errno), -1, written_);
 }
 
 void BufferedFile::flush() {
@@ -56,15 +55,14 @@ void BufferedFile::flush() {
 }
 
 void BufferedFile::write_through(const char* data, std::size_t size) {
+  const auto attempted = static_cast<std::int64_t>(size);
   while (size > 0) {
     const ssize_t written = ::write(fd_, data, size);
     if (written < 0 && errno == EINTR) continue;
-    if (written <= 0) {
-      fail_runtime("cannot write " + path_.string() + ": " + std::strerror(errno) +
-                   " (disk full?); free space or choose another output folder");
-    }
+    if (written <= 0) fail_write(path_, std::strerror(written < 0 ? errno : ENOSPC), attempted, written_);
     data += written;
     size -= static_cast<std::size_t>(written);
+    written_ += written;
   }
 }
 

@@ -1,9 +1,11 @@
 // An output file written through a large buffer with plain write(2), fsynced on
 // close: stores stream hundreds of MB/s of chips to disk without holding them.
-// Errors (disk full, I/O) name the file; the destructor closes without syncing.
+// Errors (disk full, I/O) name the file, the bytes and the free space; the
+// destructor closes without syncing.
 #pragma once
 
 #include <cstddef>
+#include <cstdint>
 #include <filesystem>
 #include <vector>
 
@@ -29,6 +31,7 @@ class BufferedFile {
   int fd_ = -1;
   std::vector<char> buffer_;
   std::size_t used_ = 0;
+  std::int64_t written_ = 0;  // bytes on disk so far, for messages
 };
 
 }  // namespace tinct

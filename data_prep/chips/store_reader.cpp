@@ -3,6 +3,7 @@
 #include <limits>
 #include <string_view>
 
+#include "util/atomic_file.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
@@ -16,8 +17,13 @@ std::string count_of(std::int64_t count, const std::string& one, const std::stri
 
 void check_store_folder(const fs::path& store) {
   if (fs::is_directory(store)) return;
-  fs::path partial = store;
-  partial += ".partial";
+  const fs::path aside = aside_folder_of(store);
+  if (fs::is_directory(aside)) {
+    fail_runtime("store " + store.string() + " not found; " + aside.string() +
+                 " holds it, moved aside by a replacement (--force) that was interrupted: run that command "
+                 "again, or rename " + aside.string() + " back to " + store.string());
+  }
+  const fs::path partial = partial_folder_of(store);
   if (fs::exists(partial)) {
     fail_runtime("store " + store.string() + " not found; " + partial.string() +
                  " is an unfinished write: build the store again");

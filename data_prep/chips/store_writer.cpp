@@ -90,6 +90,16 @@ void StoreWriter::add(const ChipRecord& record, const void* bands, const std::ui
   state_ = State::open;
 }
 
+void StoreWriter::add_file(const std::string& name, const std::string& contents) {
+  require_open("add a file");
+  const bool own = name == "manifest.yaml" || name == "bands.bin" || name == "colour.bin" || name == "valid.bin" ||
+                   name == "chips.csv";
+  if (name.empty() || own || name.find('/') != std::string::npos || name[0] == '.') {
+    fail_runtime("store " + target().string() + ": cannot add a file named \"" + name + "\"");
+  }
+  write_file_atomic(folder_.path() / name, contents);
+}
+
 void StoreWriter::finish(StoreManifest header_fields) {
   require_open("finish");
   state_ = State::failed;  // until the rename below succeeds

@@ -32,6 +32,10 @@ class StoreWriter {
   void add(const ChipRecord& record, const void* bands, const std::uint8_t* colour,
            const std::uint8_t* valid);
 
+  // A further file inside the store (e.g. a label store's dropped.csv), written
+  // atomically; it becomes part of the store when finish() renames it into place.
+  void add_file(const std::string& name, const std::string& contents);
+
   // Takes crs, pixel_size, classes, scenes, config_hash and tinct_version (filled in
   // when empty) from `header_fields`; sets everything else. An empty crs becomes the
   // scenes' CRS when all their WKT texts are equal (a caller that knows two texts

@@ -1,6 +1,7 @@
-// Why a label gave no chip, and the drop report: `<store>.dropped.csv` beside the
-// store (id, class, reason, detail; RFC 4180), one row per label dropped, written
-// whether or not a store results so a failed run still says why.
+// Why a label gave no chip, and the drop report (id, class, reason, detail; RFC
+// 4180), one row per label dropped: `dropped.csv` inside the label store, written
+// and renamed into place with it; when no label gives a chip there is no store, and
+// the report is written beside it as `<store>.dropped.csv` so the failure says why.
 #pragma once
 
 #include <cstdint>
@@ -31,7 +32,9 @@ struct LabelDrop {
   std::string detail;
 };
 
-// "stores/a.labels" -> "stores/a.labels.dropped.csv"
+inline constexpr const char* kDropReportName = "dropped.csv";  // inside the store
+
+// The report of a run that wrote no store: "stores/a.labels" -> "stores/a.labels.dropped.csv"
 std::filesystem::path drop_report_path(const std::filesystem::path& store);
 
 std::string drop_report_csv(const std::vector<LabelDrop>& drops);

@@ -119,18 +119,19 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
   }
   progress.finish();
 
-  const auto report = drop_report_path(options.output);
-  write_file_atomic(report, drop_report_csv(drops));
   log_summary(classes, kept, drops);
   LabelSummary summary;
   summary.kept = writer.chip_count();
   summary.dropped = static_cast<std::int64_t>(drops.size());
   summary.labels = summary.kept + summary.dropped;
+  const auto beside = drop_report_path(options.output);
   if (summary.kept == 0) {
+    write_file_atomic(beside, drop_report_csv(drops));
     fail_runtime("no label gave a chip: of " + std::to_string(summary.labels) + " labels, " +
-                 describe_counts(count_reasons(drops)) + "; the reasons per label are in " + report.string() +
+                 describe_counts(count_reasons(drops)) + "; the reasons per label are in " + beside.string() +
                  ". Check the labels' CRS and dates against the scenes, match.max_days and chips.min_valid");
   }
+  writer.add_file(kDropReportName, drop_report_csv(drops));
 
   StoreManifest manifest;
   for (std::size_t s = 0; s < config.scenes.size(); ++s) {
@@ -146,8 +147,13 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
   manifest.config_hash = options.config_hash;
   manifest.tinct_version = tinct_version();
   writer.finish(manifest);
+  std::error_code ec;
+  if (std::filesystem::remove(beside, ec)) {
+    log::info("removed " + beside.string() + ", the drop report of an earlier run that wrote no store");
+  }
   log::info("label: wrote " + std::to_string(summary.kept) + " chips to " + options.output.string() + ", " +
-            std::to_string(summary.dropped) + " labels dropped (see " + report.string() + ")");
+            std::to_string(summary.dropped) + " labels dropped (see " +
+            (options.output / kDropReportName).string() + ")");
   return summary;
 }
 

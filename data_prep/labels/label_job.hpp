@@ -1,8 +1,8 @@
 // The whole of `tinct label`: reads the labels (vector, CSV or label raster),
 // keeps the listed classes, samples polygons, matches every label to a scene,
-// writes one chip per matched label into a label store (no colour) and the drop
-// report beside it, and logs kept and dropped counts per class. Fails, leaving
-// no store (but the drop report), when no label gives a chip.
+// writes one chip per matched label into a label store (no colour) with the drop
+// report inside it, and logs kept and dropped counts per class. Fails, leaving
+// no store (but the drop report beside it), when no label gives a chip.
 #pragma once
 
 #include <cstdint>

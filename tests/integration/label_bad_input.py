@@ -115,6 +115,12 @@ with tempfile.TemporaryDirectory() as work:
     expect(work, "all labels dropped", run, 1, "no label gave a chip: of 3 labels", "1 class not in the list",
            "1 outside all scenes", "1 no scene within max_days", "none.labels.dropped.csv", store="none.labels")
     checks.check(os.path.exists(os.path.join(work, "none.labels.dropped.csv")), "the drop report is written anyway")
+    write_csv(work, GOOD_CSV)
+    run = run_label(work, config_text(CSV_LABELS, output="none.labels"))
+    checks.check(run.returncode == 0 and os.path.exists(os.path.join(work, "none.labels", "dropped.csv")) and
+                 not os.path.exists(os.path.join(work, "none.labels.dropped.csv")) and
+                 "removed " in run.stderr, f"a later store holds its report and the stale one beside goes: {run.stderr}")
+    shutil.rmtree(os.path.join(work, "none.labels"))
 
     # An existing store: refused without --force, untouched; replaced with it; --out elsewhere.
     write_csv(work, GOOD_CSV)
@@ -128,7 +134,7 @@ with tempfile.TemporaryDirectory() as work:
     checks.check(run_label(work, text, "--force").returncode == 0, "--force replaces the store")
     run = run_label(work, text, "--out", os.path.join(work, "elsewhere.labels"))
     checks.check(run.returncode == 0 and os.path.isdir(os.path.join(work, "elsewhere.labels")) and
-                 os.path.exists(os.path.join(work, "elsewhere.labels.dropped.csv")), "--out writes elsewhere")
+                 os.path.exists(os.path.join(work, "elsewhere.labels", "dropped.csv")), "--out writes elsewhere, the drop report inside")
 
     check = subprocess.run([TINCT, "--quiet", "check", os.path.join(work, "label.yaml")], capture_output=True, text=True)
     checks.check(check.returncode == 0 and "min_valid: 0.9" in check.stdout and "max_days: 30" in check.stdout

@@ -121,7 +121,7 @@ with tempfile.TemporaryDirectory() as work:
         checks.finish()
     store = Store(os.path.join(work, "dated.labels"))
     chips = {c["source_id"]: c for c in store.chips}
-    drops = read_drops(os.path.join(work, "dated.labels.dropped.csv"))
+    drops = read_drops(os.path.join(work, "dated.labels", "dropped.csv"))
     for lid, col, row, cls, date, site, expected in LABELS:
         if len(expected) == 1:
             chip = chips.get(lid)
@@ -157,7 +157,7 @@ with tempfile.TemporaryDirectory() as work:
     expected = {"L1": "a", "L2": "a", "L3": "a", "L4": "a", "L5": "a", "L9": "a"}
     checks.check(scenes == expected, f"undated labels use scene a: {scenes}")
     checks.check([s["id"] for s in store.manifest["scenes"]] == ["a"], "only scene a is listed as used")
-    drops = read_drops(os.path.join(work, "undated.labels.dropped.csv"))
+    drops = read_drops(os.path.join(work, "undated.labels", "dropped.csv"))
     checks.check(all(d["reason"] != "no scene within max_days" for d in drops.values()), "no date drops")
     check_chips(store, work, "undated")
 

@@ -68,7 +68,7 @@ def run_label(work, text, name):
 
 
 def drops_of(work, output):
-    with open(os.path.join(work, output + ".dropped.csv"), newline="") as f:
+    with open(os.path.join(work, output, "dropped.csv"), newline="") as f:
         return list(csv.DictReader(f))
 
 

@@ -118,7 +118,7 @@ scenes:
     checks.check(centre == [61, 131, 111], f"(-34.85, -7.96): DN {centre}, REFERENCES.md gives 61 131 111")
     checks.check(store.valid.all(), "every pixel of L7 is valid")
 
-    with open(os.path.join(work, "l7.labels.dropped.csv"), newline="") as f:
+    with open(os.path.join(work, "l7.labels", "dropped.csv"), newline="") as f:
         dropped = list(csv.DictReader(f))
     checks.check([(d["id"], d["reason"]) for d in dropped] == [("edge", "outside all scenes")],
                  f"drop report {dropped}")

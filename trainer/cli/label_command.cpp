@@ -31,7 +31,7 @@ CommandRun setup_label(CLI::App& command, const GlobalOptions&) {
   auto options = std::make_shared<LabelOptions>();
   command.add_option("config", options->config, "Label config (YAML, config: label)")->required();
   command.add_option("--out", options->out, "Store folder to write (default: the config's output)");
-  command.add_flag("--force", options->force, "Replace an existing store and its drop report");
+  command.add_flag("--force", options->force, "Replace an existing store (the old one stays whole until the new one is complete)");
   return [options] { run_label(*options); };
 }
 

@@ -40,7 +40,7 @@ CommandRun setup_pair(CLI::App& command, const GlobalOptions&) {
   command.add_option("--shard", options->shard,
                      "Pair only scenes i, i+n, ... of the config (i/n, 0-based), for array jobs; "
                      "the store gets the suffix .i-of-n unless --out is given");
-  command.add_flag("--force", options->force, "Replace an existing store");
+  command.add_flag("--force", options->force, "Replace an existing store (the old one stays whole until the new one is complete)");
   return [options] { run_pair(*options); };
 }
 
