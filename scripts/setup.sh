@@ -8,6 +8,7 @@ packages=(
   cmake g++ make ccache pkg-config git
   libtorch-dev libgloo-dev libopenblas0-pthread
   libgdal-dev gdal-bin libopencv-dev libyaml-cpp-dev libcli11-dev catch2
+  nlohmann-json3-dev libssl-dev
   # used by the reference tests (Debian's /usr/bin/python3) and the demo
   python3-numpy python3-gdal python3-sklearn python3-scipy python3-skimage python3-yaml proj-bin
   # crash tests stop or kill tinct at a chosen system call

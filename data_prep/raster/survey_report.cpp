@@ -51,30 +51,36 @@ std::string survey_table(const RasterSurvey& s) {
 }
 
 Json survey_json(const RasterSurvey& s) {
+  const auto number_or_null = [](bool known, double value) { return known ? json_number(value) : Json(); };
   Json root = Json::object();
-  root.set("path", s.path).set("driver", s.driver).set("width", s.width).set("height", s.height);
-  Json crs = Json::object();
-  crs.set("epsg", s.epsg ? Json(*s.epsg) : Json()).set("wkt", s.crs_wkt);
-  root.set("crs", crs);
+  root["path"] = s.path;
+  root["driver"] = s.driver;
+  root["width"] = s.width;
+  root["height"] = s.height;
+  root["crs"] = {{"epsg", s.epsg ? Json(*s.epsg) : Json()}, {"wkt", s.crs_wkt}};
   Json gt = Json::array();
-  for (double v : s.geotransform) gt.push(v);
-  root.set("geotransform", gt);
-  root.set("pixel_size", Json::array().push(s.geotransform[1]).push(std::fabs(s.geotransform[5])));
-  root.set("origin", Json::array().push(s.geotransform[0]).push(s.geotransform[3]));
+  for (double v : s.geotransform) gt.push_back(json_number(v));
+  root["geotransform"] = gt;
+  root["pixel_size"] = {json_number(s.geotransform[1]), json_number(std::fabs(s.geotransform[5]))};
+  root["origin"] = {json_number(s.geotransform[0]), json_number(s.geotransform[3])};
   Json bands = Json::array();
   for (const auto& b : s.bands) {
-    Json band = Json::object();
-    band.set("index", b.info.index).set("description", b.info.description)
-        .set("type", b.info.data_type)
-        .set("nodata", b.info.nodata ? Json(*b.info.nodata) : Json())
-        .set("valid_count", b.valid_count).set("valid_fraction", b.valid_fraction);
     const bool any = b.valid_count > 0;
-    band.set("min", any ? Json(b.min) : Json()).set("max", any ? Json(b.max) : Json())
-        .set("mean", any ? Json(b.mean) : Json()).set("std", any ? Json(b.std) : Json())
-        .set("overviews", b.info.overview_count);
-    bands.push(band);
+    Json band = Json::object();
+    band["index"] = b.info.index;
+    band["description"] = b.info.description;
+    band["type"] = b.info.data_type;
+    band["nodata"] = number_or_null(b.info.nodata.has_value(), b.info.nodata.value_or(0));
+    band["valid_count"] = b.valid_count;
+    band["valid_fraction"] = json_number(b.valid_fraction);
+    band["min"] = number_or_null(any, b.min);
+    band["max"] = number_or_null(any, b.max);
+    band["mean"] = number_or_null(any, b.mean);
+    band["std"] = number_or_null(any, b.std);
+    band["overviews"] = b.info.overview_count;
+    bands.push_back(band);
   }
-  root.set("bands", bands);
+  root["bands"] = bands;
   return root;
 }
 

@@ -4,7 +4,7 @@
 #include <string>
 
 #include "raster/survey.hpp"
-#include "util/json.hpp"
+#include "util/json_text.hpp"
 
 namespace tinct {
 

@@ -11,7 +11,7 @@
 #include "runs/safetensors.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
-#include "util/json.hpp"
+#include "util/json_text.hpp"
 
 namespace {
 
@@ -47,11 +47,11 @@ tinct::Json values_of(const torch::Tensor& tensor) {
   const torch::Tensor flat = tensor.flatten();
   if (tensor.is_floating_point()) {
     const torch::Tensor exact = flat.to(torch::kDouble);  // F16 and BF16 are exact in double
-    for (std::int64_t i = 0; i < exact.numel(); ++i) values.push(exact[i].item<double>());
+    for (std::int64_t i = 0; i < exact.numel(); ++i) values.push_back(exact[i].item<double>());
   } else {
     const torch::Tensor exact = flat.to(torch::kLong);
     for (std::int64_t i = 0; i < exact.numel(); ++i) {
-      values.push(static_cast<std::int64_t>(exact[i].item<std::int64_t>()));
+      values.push_back(static_cast<std::int64_t>(exact[i].item<std::int64_t>()));
     }
   }
   return values;
@@ -60,21 +60,22 @@ tinct::Json values_of(const torch::Tensor& tensor) {
 std::string dump(const tinct::NamedTensors& tensors,
                  const std::map<std::string, std::string>& metadata) {
   tinct::Json meta = tinct::Json::object();
-  for (const auto& [key, value] : metadata) meta.set(key, value);
+  for (const auto& [key, value] : metadata) meta[key] = value;
   tinct::Json list = tinct::Json::array();
   for (const auto& [name, tensor] : tensors) {
     tinct::Json shape = tinct::Json::array();
-    for (const std::int64_t size : tensor.sizes()) shape.push(size);
+    for (const std::int64_t size : tensor.sizes()) shape.push_back(size);
     tinct::Json entry = tinct::Json::object();
-    entry.set("name", name)
-        .set("dtype", std::string(c10::toString(tensor.scalar_type())))
-        .set("shape", shape)
-        .set("values", values_of(tensor));
-    list.push(entry);
+    entry["name"] = name;
+    entry["dtype"] = std::string(c10::toString(tensor.scalar_type()));
+    entry["shape"] = shape;
+    entry["values"] = values_of(tensor);
+    list.push_back(entry);
   }
   tinct::Json out = tinct::Json::object();
-  out.set("metadata", meta).set("tensors", list);
-  return out.dump(1) + "\n";
+  out["metadata"] = meta;
+  out["tensors"] = list;
+  return tinct::json_text(out, 1) + "\n";
 }
 
 int run(const std::string& mode, const std::string& file, const std::string& dump_path) {

@@ -235,25 +235,24 @@ void fill_score_metrics(ClassificationMetrics& m, const std::vector<int>& truth,
 }
 
 Json optional_json(const std::optional<double>& value) {
-  return value ? Json(*value) : Json();
+  return value ? json_number(*value) : Json();
 }
 
 Json class_json(const ClassMetrics& c, const std::string& name) {
   Json j = Json::object();
-  j.set("name", name).set("support", c.support);
-  j.set("precision", c.precision).set("precision_defined", c.precision_defined);
-  j.set("recall", c.recall).set("recall_defined", c.recall_defined);
-  j.set("f1", c.f1);
+  j["name"] = name;
+  j["support"] = c.support;
+  j["precision"] = json_number(c.precision);
+  j["precision_defined"] = c.precision_defined;
+  j["recall"] = json_number(c.recall);
+  j["recall_defined"] = c.recall_defined;
+  j["f1"] = json_number(c.f1);
   return j;
 }
 
 Json confusion_json(const ClassificationMetrics& m) {
   Json rows = Json::array();
-  for (const auto& row : m.confusion) {
-    Json counts = Json::array();
-    for (std::int64_t count : row) counts.push(count);
-    rows.push(std::move(counts));
-  }
+  for (const auto& row : m.confusion) rows.push_back(row);
   return rows;
 }
 
@@ -355,18 +354,22 @@ double positive_class_ece(const std::vector<int>& truth,
 Json metrics_json(const ClassificationMetrics& m, const std::vector<std::string>& class_names) {
   check_names(m, class_names);
   Json j = Json::object();
-  j.set("classes", m.classes).set("count", m.count);
-  j.set("accuracy", m.accuracy).set("balanced_accuracy", m.balanced_accuracy);
-  j.set("macro_f1", m.macro_f1).set("weighted_f1", m.weighted_f1).set("micro_f1", m.micro_f1);
-  j.set("kappa", m.kappa);
-  j.set("roc_auc", optional_json(m.roc_auc));
-  j.set("average_precision", optional_json(m.average_precision));
-  j.set("ece", optional_json(m.ece));
+  j["classes"] = m.classes;
+  j["count"] = m.count;
+  j["accuracy"] = json_number(m.accuracy);
+  j["balanced_accuracy"] = json_number(m.balanced_accuracy);
+  j["macro_f1"] = json_number(m.macro_f1);
+  j["weighted_f1"] = json_number(m.weighted_f1);
+  j["micro_f1"] = json_number(m.micro_f1);
+  j["kappa"] = json_number(m.kappa);
+  j["roc_auc"] = optional_json(m.roc_auc);
+  j["average_precision"] = optional_json(m.average_precision);
+  j["ece"] = optional_json(m.ece);
   Json per_class = Json::array();
-  for (int c = 0; c < m.classes; ++c) per_class.push(class_json(m.per_class[c], class_names[c]));
-  j.set("per_class", std::move(per_class));
-  j.set("confusion_axes", "rows true, columns predicted");
-  j.set("confusion", confusion_json(m));
+  for (int c = 0; c < m.classes; ++c) per_class.push_back(class_json(m.per_class[c], class_names[c]));
+  j["per_class"] = std::move(per_class);
+  j["confusion_axes"] = "rows true, columns predicted";
+  j["confusion"] = confusion_json(m);
   return j;
 }
 

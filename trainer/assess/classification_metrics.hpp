@@ -10,7 +10,7 @@
 #include <string>
 #include <vector>
 
-#include "util/json.hpp"
+#include "util/json_text.hpp"
 
 namespace tinct {
 

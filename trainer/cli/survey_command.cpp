@@ -17,12 +17,12 @@ static void run_survey(const SurveyOptions& options) {
   for (const auto& path : options.rasters) {
     const RasterSurvey survey = survey_raster(path);
     if (options.json) {
-      all.push(survey_json(survey));
+      all.push_back(survey_json(survey));
     } else {
       std::cout << survey_table(survey) << std::flush;
     }
   }
-  if (options.json) std::cout << all.dump(2) << std::endl;
+  if (options.json) std::cout << json_text(all, 2) << std::endl;
 }
 
 CommandRun setup_survey(CLI::App& command, const GlobalOptions&) {

@@ -61,7 +61,7 @@ double write_assessment(const std::filesystem::path& folder, const Predictions& 
   const ClassificationMetrics metrics = classification_metrics(
       predictions.truth, predictions.predicted, static_cast<int>(classes.size()), predictions.probabilities);
   std::filesystem::create_directories(folder);
-  write_file_atomic(folder / "metrics.json", metrics_json(metrics, classes).dump(2) + "\n");
+  write_file_atomic(folder / "metrics.json", json_text(metrics_json(metrics, classes), 2) + "\n");
   write_file_atomic(folder / "confusion.csv", confusion_csv(metrics, classes));
   write_file_atomic(folder / "predictions.csv", predictions_csv(predictions, collection, classes));
   return metrics.macro_f1;

@@ -1,6 +1,6 @@
-// Writing and reading safetensors files (safetensors.hpp): the header through tinct's Json
-// writer, read back by a small parser for the format's JSON subset; every offset and size is
-// checked against the file before any byte is copied.
+// Writing and reading safetensors files (safetensors.hpp): the header written and parsed
+// by nlohmann::json (repeated keys refused while parsing); every offset and size is checked
+// against the file before any byte is copied.
 #include "runs/safetensors.hpp"
 
 #include <algorithm>
@@ -9,11 +9,10 @@
 #include <cstring>
 #include <fstream>
 #include <set>
-#include <system_error>
 
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
-#include "util/json.hpp"
+#include "util/json_text.hpp"
 
 #if defined(__BYTE_ORDER__) && __BYTE_ORDER__ != __ORDER_LITTLE_ENDIAN__
 #error "safetensors.cpp copies tensor bytes as they are: it needs a little-endian host"
@@ -73,24 +72,20 @@ std::string header_text(const NamedTensors& tensors,
   Json header = Json::object();
   if (!metadata.empty()) {
     Json entries = Json::object();
-    for (const auto& [key, value] : metadata) entries.set(key, value);
-    header.set(kMetadataKey, entries);
+    for (const auto& [key, value] : metadata) entries[key] = value;
+    header[kMetadataKey] = entries;
   }
   std::int64_t offset = 0;
   for (const auto& [name, tensor] : tensors) {
-    Json shape = Json::array();
-    for (const std::int64_t size : tensor.sizes()) shape.push(size);
     const std::int64_t end = offset + tensor.numel() * tensor.element_size();
-    Json offsets = Json::array();
-    offsets.push(offset).push(end);
     Json entry = Json::object();
-    entry.set("dtype", dtype_name(tensor.scalar_type(), name))
-        .set("shape", shape)
-        .set("data_offsets", offsets);
-    header.set(name, entry);
+    entry["dtype"] = dtype_name(tensor.scalar_type(), name);
+    entry["shape"] = tensor.sizes().vec();
+    entry["data_offsets"] = {offset, end};
+    header[name] = entry;
     offset = end;
   }
-  std::string text = header.dump();
+  std::string text = json_text(header);
   text.append((8 - text.size() % 8) % 8, ' ');  // 8 + N is then a multiple of 8
   return text;
 }
@@ -101,183 +96,36 @@ std::string little_endian_u64(std::uint64_t value) {
   return bytes;
 }
 
-// ---- reading: the JSON subset of the header (objects, arrays, strings, integers >= 0)
+// ---- reading: the header through nlohmann's parser, keys checked for repeats as
+// they are read (the format forbids them; a parsed object would keep only one)
 
-struct HeaderValue {
-  enum class Kind { text, integer, array, object };
-  Kind kind = Kind::text;
-  std::string text;
-  std::uint64_t integer = 0;
-  std::vector<HeaderValue> items;
-  std::vector<std::pair<std::string, HeaderValue>> members;
-};
+[[noreturn]] void fail_layout(const fs::path& file, const std::string& what) {
+  fail_runtime("cannot read " + file.string() + ": " + what + "; the file is damaged or not safetensors");
+}
 
-class HeaderParser {
- public:
-  HeaderParser(const std::string& text, const fs::path& file) : text_(text), file_(file) {}
+[[noreturn]] void fail_header(const fs::path& file, std::size_t byte, const std::string& what) {
+  fail_layout(file, "safetensors header, byte " + std::to_string(byte) + ": " + what);
+}
 
-  HeaderValue parse_document() {
-    if (text_.empty() || text_[0] != '{') fail("the header must start with '{'");
-    HeaderValue document = parse_value(0);
-    skip_space();
-    if (pos_ != text_.size()) fail("unexpected text after the header object");
-    return document;
-  }
-
- private:
-  [[noreturn]] void fail(const std::string& what) const {
-    fail_runtime("cannot read " + file_.string() + ": safetensors header, byte " +
-                 std::to_string(pos_) + ": " + what +
-                 "; the file is damaged or not safetensors");
-  }
-
-  void skip_space() {
-    while (pos_ < text_.size() && is_space(text_[pos_])) ++pos_;
-  }
-
-  static bool is_space(char c) { return c == ' ' || c == '\t' || c == '\n' || c == '\r'; }
-
-  char peek() {
-    skip_space();
-    if (pos_ >= text_.size()) fail("unexpected end of the header");
-    return text_[pos_];
-  }
-
-  void expect(char c) {
-    if (peek() != c) fail(std::string("expected '") + c + "'");
-    ++pos_;
-  }
-
-  HeaderValue parse_value(int depth) {
-    if (depth > kMaxHeaderDepth) fail("nested too deeply");
-    const char c = peek();
-    HeaderValue value;
-    if (c == '{') {
-      value.kind = HeaderValue::Kind::object;
-      parse_sequence('}', [&] {
-        std::string key = parse_string();
-        expect(':');
-        value.members.emplace_back(std::move(key), parse_value(depth + 1));
-      });
-    } else if (c == '[') {
-      value.kind = HeaderValue::Kind::array;
-      parse_sequence(']', [&] { value.items.push_back(parse_value(depth + 1)); });
-    } else if (c == '"') {
-      value.text = parse_string();
-    } else if (c >= '0' && c <= '9') {
-      value.kind = HeaderValue::Kind::integer;
-      value.integer = parse_integer();
-    } else {
-      fail("expected an object, array, string or non-negative integer");
+Json parse_header(const std::string& text, const fs::path& file) {
+  if (text.empty() || text[0] != '{') fail_header(file, 0, "the header must start with '{'");
+  std::vector<std::set<std::string>> keys;  // one set per open object
+  const Json::parser_callback_t check = [&](int depth, Json::parse_event_t event, Json& parsed) {
+    if (depth > kMaxHeaderDepth) fail_layout(file, "the safetensors header is nested too deeply");
+    if (event == Json::parse_event_t::object_start) keys.emplace_back();
+    if (event == Json::parse_event_t::object_end) keys.pop_back();
+    if (event == Json::parse_event_t::key && !keys.back().insert(parsed.get<std::string>()).second) {
+      fail_layout(file, "the header repeats the key '" + parsed.get<std::string>() + "'");
     }
-    return value;
+    return true;
+  };
+  try {
+    return Json::parse(text, check);
+  } catch (const Json::parse_error& e) {
+    const std::string what = e.what();  // "[json.exception.parse_error.101] parse error at ..."
+    fail_header(file, e.byte, what.substr(what.find("] ") == std::string::npos ? 0 : what.find("] ") + 2));
   }
-
-  // The elements of `[...]` or `{...}`, comma-separated; the opening bracket is next.
-  template <typename ParseElement>
-  void parse_sequence(char close, ParseElement parse_element) {
-    ++pos_;
-    if (peek() == close) {
-      ++pos_;
-      return;
-    }
-    while (true) {
-      parse_element();
-      if (peek() == close) break;
-      expect(',');
-    }
-    ++pos_;
-  }
-
-  std::uint64_t parse_integer() {
-    std::uint64_t value = 0;
-    while (pos_ < text_.size() && text_[pos_] >= '0' && text_[pos_] <= '9') {
-      const auto digit = static_cast<std::uint64_t>(text_[pos_] - '0');
-      if (value > (UINT64_MAX - digit) / 10) fail("integer too large");
-      value = value * 10 + digit;
-      ++pos_;
-    }
-    const char next = pos_ < text_.size() ? text_[pos_] : ' ';
-    if (next == '.' || next == 'e' || next == 'E') fail("expected an integer");
-    return value;
-  }
-
-  std::string parse_string() {
-    expect('"');
-    std::string out;
-    while (true) {
-      if (pos_ >= text_.size()) fail("unterminated string");
-      const char c = text_[pos_++];
-      if (c == '"') return out;
-      if (static_cast<unsigned char>(c) < 0x20) fail("control character in a string");
-      if (c != '\\') {
-        out += c;
-        continue;
-      }
-      if (pos_ >= text_.size()) fail("unterminated string");
-      const char escaped = text_[pos_++];
-      switch (escaped) {
-        case '"': out += '"'; break;
-        case '\\': out += '\\'; break;
-        case '/': out += '/'; break;
-        case 'b': out += '\b'; break;
-        case 'f': out += '\f'; break;
-        case 'n': out += '\n'; break;
-        case 'r': out += '\r'; break;
-        case 't': out += '\t'; break;
-        case 'u': append_utf8(out, parse_code_point()); break;
-        default: fail(std::string("unknown escape \\") + escaped);
-      }
-    }
-  }
-
-  unsigned parse_hex4() {
-    if (pos_ + 4 > text_.size()) fail("short \\u escape");
-    unsigned value = 0;
-    for (int i = 0; i < 4; ++i) {
-      const char c = text_[pos_++];
-      value <<= 4;
-      if (c >= '0' && c <= '9') value |= static_cast<unsigned>(c - '0');
-      else if (c >= 'a' && c <= 'f') value |= static_cast<unsigned>(c - 'a' + 10);
-      else if (c >= 'A' && c <= 'F') value |= static_cast<unsigned>(c - 'A' + 10);
-      else fail("bad \\u escape");
-    }
-    return value;
-  }
-
-  // After "\u": one code point, joining a UTF-16 surrogate pair.
-  unsigned parse_code_point() {
-    const unsigned high = parse_hex4();
-    if (high < 0xD800 || high > 0xDFFF) return high;
-    if (high > 0xDBFF || text_.compare(pos_, 2, "\\u") != 0) fail("unpaired surrogate");
-    pos_ += 2;
-    const unsigned low = parse_hex4();
-    if (low < 0xDC00 || low > 0xDFFF) fail("unpaired surrogate");
-    return 0x10000 + ((high - 0xD800) << 10) + (low - 0xDC00);
-  }
-
-  static void append_utf8(std::string& out, unsigned code) {
-    if (code < 0x80) {
-      out += static_cast<char>(code);
-    } else if (code < 0x800) {
-      out += static_cast<char>(0xC0 | (code >> 6));
-      out += static_cast<char>(0x80 | (code & 0x3F));
-    } else if (code < 0x10000) {
-      out += static_cast<char>(0xE0 | (code >> 12));
-      out += static_cast<char>(0x80 | ((code >> 6) & 0x3F));
-      out += static_cast<char>(0x80 | (code & 0x3F));
-    } else {
-      out += static_cast<char>(0xF0 | (code >> 18));
-      out += static_cast<char>(0x80 | ((code >> 12) & 0x3F));
-      out += static_cast<char>(0x80 | ((code >> 6) & 0x3F));
-      out += static_cast<char>(0x80 | (code & 0x3F));
-    }
-  }
-
-  const std::string& text_;
-  const fs::path& file_;
-  std::size_t pos_ = 0;
-};
+}
 
 // ---- reading: from the parsed header to tensors
 
@@ -288,47 +136,39 @@ struct TensorEntry {
   std::uint64_t begin, end;
 };
 
-[[noreturn]] void fail_layout(const fs::path& file, const std::string& what) {
-  fail_runtime("cannot read " + file.string() + ": " + what +
-               "; the file is damaged or not safetensors");
-}
-
-const HeaderValue& member(const HeaderValue& object, const std::string& key,
-                          HeaderValue::Kind kind, const fs::path& file, const std::string& name) {
-  for (const auto& [k, v] : object.members) {
-    if (k == key && v.kind == kind) return v;
+const Json& member(const Json& object, const char* key, bool (Json::*is_kind)() const, const fs::path& file,
+                   const std::string& name) {
+  const auto found = object.find(key);
+  if (found == object.end() || !((*found).*is_kind)()) {
+    fail_layout(file, "tensor '" + name + "' lacks a valid \"" + key + "\"");
   }
-  fail_layout(file, "tensor '" + name + "' lacks a valid \"" + key + "\"");
+  return *found;
 }
 
-torch::ScalarType dtype_from_name(const std::string& dtype, const fs::path& file,
-                                  const std::string& name) {
+torch::ScalarType dtype_from_name(const std::string& dtype, const fs::path& file, const std::string& name) {
   for (const auto& entry : kDtypes) {
     if (dtype == entry.name) return entry.type;
   }
-  fail_layout(file,
-              "tensor '" + name + "' has dtype \"" + dtype + "\", which tinct does not read");
+  fail_layout(file, "tensor '" + name + "' has dtype \"" + dtype + "\", which tinct does not read");
 }
 
-TensorEntry tensor_entry(const std::string& name, const HeaderValue& value,
-                         const fs::path& file) {
-  using Kind = HeaderValue::Kind;
-  if (value.kind != Kind::object) fail_layout(file, "tensor '" + name + "' is not an object");
-  TensorEntry entry{name, dtype_from_name(member(value, "dtype", Kind::text, file, name).text,
-                                          file, name), {}, 0, 0};
-  for (const auto& size : member(value, "shape", Kind::array, file, name).items) {
-    if (size.kind != Kind::integer || size.integer > (1ull << 62)) {
+TensorEntry tensor_entry(const std::string& name, const Json& value, const fs::path& file) {
+  if (!value.is_object()) fail_layout(file, "tensor '" + name + "' is not an object");
+  const std::string dtype = member(value, "dtype", &Json::is_string, file, name).get<std::string>();
+  TensorEntry entry{name, dtype_from_name(dtype, file, name), {}, 0, 0};
+  for (const Json& size : member(value, "shape", &Json::is_array, file, name)) {
+    if (!size.is_number_unsigned() || size.get<std::uint64_t>() > (1ull << 62)) {
       fail_layout(file, "tensor '" + name + "' has a bad shape");
     }
-    entry.shape.push_back(static_cast<std::int64_t>(size.integer));
+    entry.shape.push_back(size.get<std::int64_t>());
   }
-  const auto& offsets = member(value, "data_offsets", Kind::array, file, name).items;
-  if (offsets.size() != 2 || offsets[0].kind != Kind::integer ||
-      offsets[1].kind != Kind::integer || offsets[1].integer < offsets[0].integer) {
+  const Json& offsets = member(value, "data_offsets", &Json::is_array, file, name);
+  if (offsets.size() != 2 || !offsets[0].is_number_unsigned() || !offsets[1].is_number_unsigned() ||
+      offsets[1].get<std::uint64_t>() < offsets[0].get<std::uint64_t>()) {
     fail_layout(file, "tensor '" + name + "' needs data_offsets [begin, end] with begin <= end");
   }
-  entry.begin = offsets[0].integer;
-  entry.end = offsets[1].integer;
+  entry.begin = offsets[0].get<std::uint64_t>();
+  entry.end = offsets[1].get<std::uint64_t>();
   return entry;
 }
 
@@ -372,14 +212,12 @@ void check_layout(std::vector<TensorEntry> entries, std::uint64_t data_size,
   }
 }
 
-std::map<std::string, std::string> metadata_of(const HeaderValue& value, const fs::path& file) {
-  if (value.kind != HeaderValue::Kind::object) fail_layout(file, "__metadata__ is not an object");
+std::map<std::string, std::string> metadata_of(const Json& value, const fs::path& file) {
+  if (!value.is_object()) fail_layout(file, "__metadata__ is not an object");
   std::map<std::string, std::string> out;
-  for (const auto& [key, entry] : value.members) {
-    if (entry.kind != HeaderValue::Kind::text) {
-      fail_layout(file, "__metadata__ value of '" + key + "' is not a string");
-    }
-    out[key] = entry.text;
+  for (const auto& [key, entry] : value.items()) {
+    if (!entry.is_string()) fail_layout(file, "__metadata__ value of '" + key + "' is not a string");
+    out[key] = entry.get<std::string>();
   }
   return out;
 }
@@ -401,26 +239,12 @@ void write_safetensors(const fs::path& path, const NamedTensors& tensors,
   const NamedTensors cpu_tensors = contiguous_on_cpu(tensors);
   const std::string header = header_text(cpu_tensors, metadata);
 
-  const fs::path temporary = temporary_sibling(path);
-  {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    if (!out) {
-      fail_runtime("cannot write " + path.string() + ": " + std::strerror(errno) +
-                   "; check that the folder exists and is writable");
-    }
-    out << little_endian_u64(header.size()) << header;
-    for (const auto& [name, tensor] : cpu_tensors) {
-      out.write(static_cast<const char*>(tensor.data_ptr()),
-                static_cast<std::streamsize>(tensor.numel() * tensor.element_size()));
-    }
-    out.flush();
-    if (!out) {
-      std::error_code ec;
-      fs::remove(temporary, ec);
-      fail_runtime("cannot write " + path.string() + ": write failed (disk full?)");
-    }
+  AtomicFile out(path);
+  out.write(little_endian_u64(header.size()) + header);
+  for (const auto& [name, tensor] : cpu_tensors) {
+    out.write(tensor.data_ptr(), static_cast<std::size_t>(tensor.numel() * tensor.element_size()));
   }
-  commit_file(temporary, path);
+  out.commit();
 }
 
 NamedTensors read_safetensors(const fs::path& path, std::map<std::string, std::string>* metadata) {
@@ -433,18 +257,13 @@ NamedTensors read_safetensors(const fs::path& path, std::map<std::string, std::s
   if (header_size > bytes.size() - 8) {
     fail_layout(path, "header length " + std::to_string(header_size) + " exceeds the file");
   }
-  const std::string header_text = bytes.substr(8, header_size);
-  const HeaderValue header = HeaderParser(header_text, path).parse_document();
+  const Json header = parse_header(bytes.substr(8, header_size), path);
   const char* data = bytes.data() + 8 + header_size;
   const std::uint64_t data_size = bytes.size() - 8 - header_size;
 
   if (metadata != nullptr) metadata->clear();
   std::vector<TensorEntry> entries;
-  std::set<std::string> seen;
-  for (const auto& [name, value] : header.members) {
-    if (!seen.insert(name).second) {
-      fail_layout(path, "the header repeats the key '" + name + "'");
-    }
+  for (const auto& [name, value] : header.items()) {
     if (name == kMetadataKey) {
       std::map<std::string, std::string> entries = metadata_of(value, path);  // checked always
       if (metadata != nullptr) *metadata = std::move(entries);
