@@ -17,7 +17,7 @@
 #include "labels/label_config.hpp"
 #include "labels/label_drops.hpp"
 #include "labels/label_reader.hpp"
-#include "labels/point_transform.hpp"
+#include "raster/point_transform.hpp"
 #include "raster/scene.hpp"
 #include "raster/target_grid.hpp"
 

@@ -1,12 +1,11 @@
 #include "labels/label_raster.hpp"
 
-#include <ogr_spatialref.h>
-
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <map>
 
+#include "raster/crs.hpp"
 #include "raster/raster.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
@@ -37,10 +36,8 @@ void require_projected(const Raster& raster) {
   if (wkt.empty()) {
     fail_usage(file + ": the label raster has no CRS; assign one (gdal_edit.py -a_srs EPSG:XXXX " + file + ")");
   }
-  OGRSpatialReference crs;
-  crs.importFromWkt(wkt.c_str());
   const GeoTransform gt = raster.geotransform();
-  if (crs.IsGeographic() || gt[2] != 0 || gt[4] != 0 || gt[5] >= 0) {
+  if (crs_is_geographic(wkt) || gt[2] != 0 || gt[4] != 0 || gt[5] >= 0) {
     fail_usage(file + ": the label raster must be north-up in a projected CRS so its pixels compare to the "
                "grid's; warp it onto a scene's CRS first (gdalwarp -t_srs EPSG:XXXX -r near)");
   }

@@ -1,8 +1,5 @@
 #include "labels/label_reader.hpp"
 
-#include <gdal_priv.h>
-#include <ogrsf_frmts.h>
-
 #include <algorithm>
 #include <cerrno>
 #include <cmath>
@@ -11,12 +8,11 @@
 #include <set>
 
 #include "labels/csv_table.hpp"
-#include "labels/point_transform.hpp"
-#include "raster/gdal_session.hpp"
+#include "raster/crs.hpp"
 #include "raster/scene_date.hpp"
 #include "raster/target_grid.hpp"
+#include "raster/vector_layer.hpp"
 #include "util/error.hpp"
-#include "util/log.hpp"
 #include "util/nearest_name.hpp"
 
 namespace tinct {
@@ -99,138 +95,90 @@ LabelSet read_csv(const LabelSourceSettings& s) {
 
 // ---- any OGR vector source
 
-OGRLayer* choose_layer(GDALDataset& dataset, const LabelSourceSettings& s) {
+std::string layer_crs(const VectorLayer& layer, const LabelSourceSettings& s) {
   const std::string file = s.source.string();
-  std::vector<std::string> names;
-  for (int i = 0; i < dataset.GetLayerCount(); ++i) names.push_back(dataset.GetLayer(i)->GetName());
-  if (names.empty()) fail_runtime(file + ": holds no vector layer");
-  if (s.layer.empty()) {
-    if (names.size() > 1) {
-      log::info(file + ": reading its first layer, " + names.front() + ", of " + listed(names) +
-                " (set labels.layer to choose)");
-    }
-    return dataset.GetLayer(0);
-  }
-  if (OGRLayer* layer = dataset.GetLayerByName(s.layer.c_str())) return layer;
-  std::string message = file + ": no layer \"" + s.layer + "\" (labels.layer); its layers are " + listed(names);
-  const std::string near = nearest_name(s.layer, names);
-  if (!near.empty()) message += "; did you mean \"" + near + "\"?";
-  fail_usage(message);
-}
-
-std::string layer_crs(OGRLayer& layer, const LabelSourceSettings& s) {
-  const std::string file = s.source.string();
-  const OGRSpatialReference* own = layer.GetSpatialRef();
-  if (!own || own->IsEmpty()) {
+  const std::string wkt = layer.crs_wkt();
+  if (wkt.empty()) {
     if (!s.crs.empty()) return crs_as_wkt(s.crs, "labels.crs");
-    fail_usage(file + ": layer " + layer.GetName() + " has no CRS, so its coordinates cannot be placed on "
+    fail_usage(file + ": layer " + layer.name() + " has no CRS, so its coordinates cannot be placed on "
                "the scenes; set labels.crs (e.g. crs: EPSG:4326) in the config, or write the CRS into "
                "the file (ogr2ogr -a_srs EPSG:4326 fixed.gpkg " + s.source.filename().string() + ")");
   }
-  char* text = nullptr;
-  const char* const options[] = {"FORMAT=WKT2_2018", nullptr};
-  own->exportToWkt(&text, options);
-  const std::string wkt = text ? text : "";
-  CPLFree(text);
   if (!s.crs.empty() && !same_crs(wkt, crs_as_wkt(s.crs, "labels.crs"))) {
-    fail_usage(file + ": layer " + layer.GetName() + " has its own CRS, which differs from labels.crs " +
+    fail_usage(file + ": layer " + layer.name() + " has its own CRS, which differs from labels.crs " +
                s.crs + "; remove labels.crs (it only assigns a CRS to a layer without one)");
   }
   return wkt;
 }
 
-int field_of(OGRFeatureDefn& definition, const LabelSourceSettings& s, const std::string& key,
+int field_of(const VectorLayer& layer, const LabelSourceSettings& s, const std::string& key,
              const std::string& name) {
   if (name.empty()) return -1;
-  const int index = definition.GetFieldIndex(name.c_str());
+  const int index = layer.field_index(name);
   if (index >= 0) return index;
-  std::vector<std::string> fields;
-  for (int i = 0; i < definition.GetFieldCount(); ++i) fields.push_back(definition.GetFieldDefn(i)->GetNameRef());
-  fail_column(s.source.string(), key, name, fields);
+  fail_column(s.source.string(), key, name, layer.field_names());
 }
 
-std::string field_text(OGRFeature& feature, int field, const std::string& where, const std::string& column) {
-  if (!feature.IsFieldSetAndNotNull(field)) fail_runtime(where + ": " + column + " is empty; fill it in");
-  return required_text(feature.GetFieldAsString(field), where, column);
+std::string field_text(const FieldValue& value, const std::string& where, const std::string& column) {
+  if (!value.present) fail_runtime(where + ": " + column + " is empty; fill it in");
+  return required_text(value.text, where, column);
 }
 
-std::string field_date(OGRFeature& feature, int field, const std::string& where, const std::string& column) {
-  if (!feature.IsFieldSetAndNotNull(field)) {
-    fail_runtime(where + ": " + column + " is empty; give the visit date as YYYY-MM-DD");
-  }
-  const OGRFieldType type = feature.GetFieldDefnRef(field)->GetType();
-  if (type == OFTDate || type == OFTDateTime) {
-    int year = 0, month = 0, day = 0, hour = 0, minute = 0, zone = 0;
-    float second = 0;
-    feature.GetFieldAsDateTime(field, &year, &month, &day, &hour, &minute, &second, &zone);
+std::string field_date(const FieldValue& value, const std::string& where, const std::string& column) {
+  if (!value.present) fail_runtime(where + ": " + column + " is empty; give the visit date as YYYY-MM-DD");
+  if (value.kind == FieldKind::date) {
     char text[32];
-    std::snprintf(text, sizeof(text), "%04d-%02d-%02d", year, month, day);
+    std::snprintf(text, sizeof(text), "%04d-%02d-%02d", value.year, value.month, value.day);
     return checked_date(text, where, column);
   }
-  if (type != OFTString) {
-    fail_runtime(where + ": " + column + " is a " + OGRFieldDefn::GetFieldTypeName(type) +
+  if (value.kind != FieldKind::text) {
+    fail_runtime(where + ": " + column + " is a " + value.type_name +
                  " field; a date column holds dates or text as YYYY-MM-DD");
   }
-  return checked_date(feature.GetFieldAsString(field), where, column);
+  return checked_date(value.text, where, column);
 }
 
-void place_geometry(const OGRGeometry* geometry, LabelRecord& label) {
-  if (!geometry || geometry->IsEmpty()) {
-    fail_runtime(label.where + ": has no geometry; give it a point or a polygon, or remove it");
+void place_geometry(const FeatureGeometry& geometry, LabelRecord& label) {
+  switch (geometry.kind) {
+    case GeometryKind::none:
+      fail_runtime(label.where + ": has no geometry; give it a point or a polygon, or remove it");
+    case GeometryKind::other:
+      fail_runtime(label.where + ": is a " + geometry.type_name +
+                   "; labels are points or polygons (split multi-points into single points)");
+    case GeometryKind::polygon:
+      label.shape = LabelShape::polygon;
+      label.polygon_wkt = geometry.wkt;
+      return;
+    case GeometryKind::point:
+      break;
   }
-  const OGRwkbGeometryType type = wkbFlatten(geometry->getGeometryType());
-  const OGRPoint* point = nullptr;
-  if (type == wkbPoint) {
-    point = geometry->toPoint();
-  } else if (type == wkbMultiPoint && geometry->toMultiPoint()->getNumGeometries() == 1) {
-    point = geometry->toMultiPoint()->getGeometryRef(0);
-  } else if (type == wkbPolygon || type == wkbMultiPolygon) {
-    label.shape = LabelShape::polygon;
-    char* text = nullptr;
-    geometry->exportToWkt(&text, wkbVariantIso);
-    label.polygon_wkt = text ? text : "";
-    CPLFree(text);
-    return;
-  }
-  if (!point) {
-    fail_runtime(label.where + ": is a " + OGRGeometryTypeToName(geometry->getGeometryType()) +
-                 "; labels are points or polygons (split multi-points into single points)");
-  }
-  label.x = point->getX();
-  label.y = point->getY();
+  label.x = geometry.x;
+  label.y = geometry.y;
   if (!std::isfinite(label.x) || !std::isfinite(label.y)) {
     fail_runtime(label.where + ": its point has no finite coordinates");
   }
 }
 
 LabelSet read_vector(const LabelSourceSettings& s) {
-  ensure_gdal();
   const std::string file = s.source.string();
-  GDALDatasetUniquePtr dataset(GDALDataset::FromHandle(
-      GDALOpenEx(file.c_str(), GDAL_OF_VECTOR | GDAL_OF_READONLY, nullptr, nullptr, nullptr)));
-  if (!dataset) {
-    fail_runtime(file + ": not a vector file OGR can read (" + last_gdal_message() +
-                 "); use GeoJSON, GeoPackage, a Shapefile, or a .csv");
-  }
-  OGRLayer* layer = choose_layer(*dataset, s);
+  const VectorLayer layer = VectorLayer::open(s.source, s.layer);
   LabelSet set;
-  set.crs = layer_crs(*layer, s);
-  OGRFeatureDefn& definition = *layer->GetLayerDefn();
-  const int cls = field_of(definition, s, "class", s.class_column);
-  const int date = field_of(definition, s, "date", s.date_column);
-  const int group = field_of(definition, s, "group", s.group_column);
-  const int id = field_of(definition, s, "id", s.id_column);
-  layer->ResetReading();
-  for (const auto& feature : *layer) {
+  set.crs = layer_crs(layer, s);
+  // Fields asked for, in this order: class, date, group, id (-1 when not asked).
+  const std::vector<int> fields = {field_of(layer, s, "class", s.class_column), field_of(layer, s, "date", s.date_column),
+                                   field_of(layer, s, "group", s.group_column), field_of(layer, s, "id", s.id_column)};
+  layer.for_each_feature(fields, [&](const VectorFeature& feature) {
+    const FieldValue &cls = feature.fields[0], &date = feature.fields[1], &group = feature.fields[2],
+                     &id = feature.fields[3];
     LabelRecord label;
-    label.where = file + " feature " + std::to_string(feature->GetFID());
-    label.id = id >= 0 ? field_text(*feature, id, label.where, s.id_column) : std::to_string(feature->GetFID());
-    label.class_name = field_text(*feature, cls, label.where, s.class_column);
-    if (date >= 0) label.date = field_date(*feature, date, label.where, s.date_column);
-    label.group = group >= 0 ? field_text(*feature, group, label.where, s.group_column) : label.id;
-    place_geometry(feature->GetGeometryRef(), label);
+    label.where = file + " feature " + std::to_string(feature.fid);
+    label.id = fields[3] >= 0 ? field_text(id, label.where, s.id_column) : std::to_string(feature.fid);
+    label.class_name = field_text(cls, label.where, s.class_column);
+    if (fields[1] >= 0) label.date = field_date(date, label.where, s.date_column);
+    label.group = fields[2] >= 0 ? field_text(group, label.where, s.group_column) : label.id;
+    place_geometry(feature.geometry, label);
     set.labels.push_back(std::move(label));
-  }
+  });
   return set;
 }
 

@@ -1,11 +1,8 @@
 #include "labels/polygon_sampler.hpp"
 
-#include <ogr_geometry.h>
-
-#include <memory>
 #include <random>
 
-#include "raster/gdal_session.hpp"
+#include "raster/polygon_shape.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 
@@ -14,29 +11,19 @@ namespace {
 
 constexpr int kTriesPerPoint = 1000;
 
-std::unique_ptr<OGRGeometry> parse_polygon(const LabelRecord& label) {
-  OGRGeometry* geometry = nullptr;
-  const char* text = label.polygon_wkt.c_str();
-  if (OGRGeometryFactory::createFromWkt(&text, nullptr, &geometry) != OGRERR_NONE || !geometry) {
-    fail_runtime(label.where + ": its polygon cannot be read back (" + last_gdal_message() + ")");
-  }
-  return std::unique_ptr<OGRGeometry>(geometry);
-}
-
 std::vector<LabelRecord> sample_one(const LabelRecord& polygon, int count, std::mt19937_64& random) {
-  const std::unique_ptr<OGRGeometry> geometry = parse_polygon(polygon);
-  OGREnvelope box;
-  geometry->getEnvelope(&box);
-  std::uniform_real_distribution<double> x(box.MinX, box.MaxX), y(box.MinY, box.MaxY);
+  const PolygonShape shape(polygon.polygon_wkt, polygon.where);
+  const Envelope box = shape.envelope();
+  std::uniform_real_distribution<double> x(box.min_x, box.max_x), y(box.min_y, box.max_y);
   std::vector<LabelRecord> samples;
   for (int tries = 0; tries < count * kTriesPerPoint && static_cast<int>(samples.size()) < count; ++tries) {
-    const OGRPoint point(x(random), y(random));
-    if (!point.Within(geometry.get())) continue;
+    const double px = x(random), py = y(random);
+    if (!shape.contains(px, py)) continue;
     LabelRecord sample = polygon;
     sample.shape = LabelShape::point;
     sample.polygon_wkt.clear();
-    sample.x = point.getX();
-    sample.y = point.getY();
+    sample.x = px;
+    sample.y = py;
     sample.sample = static_cast<int>(samples.size()) + 1;
     samples.push_back(std::move(sample));
   }
@@ -49,8 +36,7 @@ void sample_polygons(LabelSet& set, int count, std::uint64_t seed) {
   bool any = false;
   for (const auto& label : set.labels) any = any || label.shape == LabelShape::polygon;
   if (!any) return;
-  ensure_gdal();
-  if (!OGRGeometryFactory::haveGEOS()) {
+  if (!PolygonShape::available()) {
     fail_runtime("polygon labels need GDAL built with GEOS (for Within); this GDAL has none");
   }
   std::vector<LabelRecord> points;

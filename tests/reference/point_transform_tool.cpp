@@ -5,7 +5,7 @@
 #include <iostream>
 #include <string>
 
-#include "labels/point_transform.hpp"
+#include "raster/point_transform.hpp"
 #include "util/error.hpp"
 
 int main(int argc, char** argv) {

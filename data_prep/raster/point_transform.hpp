@@ -30,7 +30,4 @@ class PointTransform {
   std::unique_ptr<OGRCoordinateTransformation, Release> transform_;  // null: same CRS
 };
 
-// The CRS `definition` as WKT (fails naming `role` when OGR cannot read it).
-std::string crs_as_wkt(const std::string& definition, const std::string& role);
-
 }  // namespace tinct

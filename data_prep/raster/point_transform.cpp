@@ -1,9 +1,10 @@
-#include "labels/point_transform.hpp"
+#include "raster/point_transform.hpp"
 
 #include <ogr_spatialref.h>
 
 #include <cmath>
 
+#include "raster/crs.hpp"
 #include "raster/gdal_session.hpp"
 #include "util/error.hpp"
 
@@ -11,11 +12,7 @@ namespace tinct {
 namespace {
 
 void read_crs(const std::string& definition, const std::string& role, OGRSpatialReference& crs) {
-  ensure_gdal();
-  if (definition.empty() || crs.SetFromUserInput(definition.c_str()) != OGRERR_NONE) {
-    fail_usage("the " + role + " \"" + definition.substr(0, 80) +
-               "\" is not a CRS OGR can read; give e.g. EPSG:4326 or a WKT text");
-  }
+  crs.importFromWkt(crs_as_wkt(definition, role).c_str());
   crs.SetAxisMappingStrategy(OAMS_TRADITIONAL_GIS_ORDER);
 }
 
@@ -47,17 +44,6 @@ bool PointTransform::apply(double& x, double& y) const {
   x = tx;
   y = ty;
   return true;
-}
-
-std::string crs_as_wkt(const std::string& definition, const std::string& role) {
-  OGRSpatialReference crs;
-  read_crs(definition, role, crs);
-  char* text = nullptr;
-  const char* const options[] = {"FORMAT=WKT2_2018", nullptr};
-  crs.exportToWkt(&text, options);
-  std::string wkt = text ? text : "";
-  CPLFree(text);
-  return wkt;
 }
 
 }  // namespace tinct
