@@ -5,20 +5,16 @@
 #include <map>
 #include <vector>
 
-#include "chips/chip_plan.hpp"
-#include "chips/band_storage.hpp"
-#include "chips/store_writer.hpp"
+#include "chips/store_builder.hpp"
 #include "labels/label_drops.hpp"
 #include "labels/label_matcher.hpp"
 #include "labels/label_raster.hpp"
 #include "labels/label_reader.hpp"
 #include "labels/polygon_sampler.hpp"
-#include "raster/raster.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 #include "util/progress.hpp"
-#include "util/version_info.hpp"
 
 namespace tinct {
 namespace {
@@ -30,24 +26,6 @@ LabelSet read_labels(const LabelConfig& config, std::vector<std::string>& classe
   classes = select_classes(set, listed);
   sample_polygons(set, s.polygon_chips, config.chips.seed);
   return set;
-}
-
-StoreScene describe(const SceneSpec& spec, const TargetGrid& grid) {
-  StoreScene entry;
-  entry.id = spec.id;
-  entry.path = spec.bands.front().file.string();
-  entry.date = spec.date;
-  entry.crs = grid.crs_wkt;
-  entry.notes["grid_width"] = std::to_string(grid.width);
-  entry.notes["grid_height"] = std::to_string(grid.height);
-  return entry;
-}
-
-std::string shared_crs(const std::vector<StoreScene>& scenes) {
-  for (const auto& scene : scenes) {
-    if (!same_crs(scene.crs, scenes.front().crs)) return "";
-  }
-  return scenes.empty() ? "" : scenes.front().crs;
 }
 
 void log_summary(const std::vector<std::string>& classes, const std::map<std::string, std::int64_t>& kept,
@@ -73,20 +51,23 @@ void log_summary(const std::vector<std::string>& classes, const std::map<std::st
 LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& options) {
   std::vector<const SceneSpec*> scenes;
   for (const SceneSpec& scene : config.scenes) scenes.push_back(&scene);
-  const StorageType storage = storage_for_inputs(scenes, config.inputs);
-  const StoreLayout layout =
-      chip_store_layout(StoreKind::labels, config.chips.size, config.inputs, storage, config.sensor);
-  StoreWriter writer(options.output, layout, options.replace);
+  StorePlan plan;
+  plan.output = options.output;
+  plan.replace = options.replace;
+  plan.kind = StoreKind::labels;
+  plan.chip_size = config.chips.size;
+  plan.inputs = config.inputs;
+  plan.pixel_size = config.resolution;
+  plan.block_size = config.chips.block_size;
+  plan.config_hash = options.config_hash;
+  StoreBuilder store(plan, scenes, config.sensor);
   std::vector<std::string> classes;
   LabelSet set = read_labels(config, classes);
   std::vector<LabelDrop> drops = std::move(set.drops);
 
   LabelMatcher matcher(config, set.crs);
-  const int size = config.chips.size;
   std::vector<bool> used(config.scenes.size(), false);
   std::map<std::string, std::int64_t> kept;
-  std::vector<std::uint16_t> u16;
-  std::vector<float> f32;
   Progress progress("label", static_cast<std::int64_t>(set.labels.size()), "labels");
   std::int64_t seen = 0;
   for (const LabelRecord& label : set.labels) {
@@ -96,24 +77,9 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
       drops.push_back(match.drop);
       continue;
     }
-    const SceneSpec& spec = config.scenes[match.choice.scene];
-    const TargetGrid& grid = matcher.grid(match.choice.scene);
-    ChipRecord record;
-    record.index = writer.chip_count();
-    record.scene = spec.id;
-    record.col = match.choice.chip.col;
-    record.row = match.choice.chip.row;
-    record.x = grid.geotransform[0] + (record.col + size / 2.0) * grid.geotransform[1];
-    record.y = grid.geotransform[3] + (record.row + size / 2.0) * grid.geotransform[5];
-    record.date = spec.date;
-    record.valid_fraction = match.valid_fraction;
-    record.block = block_of(record.x, record.y, config.chips.block_size);
-    record.label = label.class_name;
-    record.group = label.group;
-    record.source_id = label.id;
-    to_stored_values(matcher.values(), matcher.valid(), storage, u16, f32);
-    const void* bands = storage == StorageType::uint16 ? static_cast<const void*>(u16.data()) : f32.data();
-    writer.add(record, bands, nullptr, matcher.valid().data());
+    const ChipLabel fields{label.class_name, label.group, label.id};
+    store.add_chip(config.scenes[match.choice.scene], matcher.grid(match.choice.scene), match.choice.chip.col,
+                   match.choice.chip.row, match.valid_fraction, matcher.values(), matcher.valid(), nullptr, &fields);
     used[match.choice.scene] = true;
     ++kept[label.class_name];
   }
@@ -121,7 +87,7 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
 
   log_summary(classes, kept, drops);
   LabelSummary summary;
-  summary.kept = writer.chip_count();
+  summary.kept = store.chip_count();
   summary.dropped = static_cast<std::int64_t>(drops.size());
   summary.labels = summary.kept + summary.dropped;
   const auto beside = drop_report_path(options.output);
@@ -131,22 +97,13 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
                  describe_counts(count_reasons(drops)) + "; the reasons per label are in " + beside.string() +
                  ". Check the labels' CRS and dates against the scenes, match.max_days and chips.min_valid");
   }
-  writer.add_file(kDropReportName, drop_report_csv(drops));
+  store.add_file(kDropReportName, drop_report_csv(drops));
 
-  StoreManifest manifest;
+  std::vector<StoreScene> described;
   for (std::size_t s = 0; s < config.scenes.size(); ++s) {
-    if (used[s]) manifest.scenes.push_back(describe(config.scenes[s], matcher.grid(s)));
+    if (used[s]) described.push_back(store_scene(config.scenes[s], matcher.grid(s)));
   }
-  manifest.kind = StoreKind::labels;
-  manifest.chip_size = size;
-  manifest.bands = store_bands(config.inputs, storage, config.sensor);
-  manifest.colour_encoding = ColourEncoding::none;
-  manifest.crs = shared_crs(manifest.scenes);
-  manifest.pixel_size = config.resolution;
-  manifest.classes = classes;
-  manifest.config_hash = options.config_hash;
-  manifest.tinct_version = tinct_version();
-  writer.finish(manifest);
+  store.finish(std::move(described), classes);
   std::error_code ec;
   if (std::filesystem::remove(beside, ec)) {
     log::info("removed " + beside.string() + ", the drop report of an earlier run that wrote no store");

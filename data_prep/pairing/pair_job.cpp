@@ -2,24 +2,13 @@
 
 #include <cstdio>
 
-#include "chips/band_storage.hpp"
-#include "chips/store_writer.hpp"
+#include "chips/store_builder.hpp"
 #include "pairing/scene_pairer.hpp"
-#include "raster/raster.hpp"
-#include "raster/target_grid.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
-#include "util/version_info.hpp"
 
 namespace tinct {
 namespace {
-
-std::string shared_crs(const std::vector<StoreScene>& scenes) {
-  for (const auto& scene : scenes) {
-    if (!same_crs(scene.crs, scenes.front().crs)) return "";
-  }
-  return scenes.empty() ? "" : scenes.front().crs;
-}
 
 [[noreturn]] void fail_no_chips(const PairSummary& summary, const PairConfig& config) {
   char text[512];
@@ -50,21 +39,26 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
     scenes.push_back(&config.scenes[i]);
   }
   if (scenes.empty()) fail_usage("shard " + std::to_string(options.shard_index) + " has no scenes to pair");
-  const StorageType storage = storage_for_inputs(scenes, config.inputs);
-  const StoreLayout layout =
-      chip_store_layout(StoreKind::pairs, config.chips.size, config.inputs, storage, config.sensor);
-  StoreWriter writer(options.output, layout, options.replace);
+  StorePlan plan;
+  plan.output = options.output;
+  plan.replace = options.replace;
+  plan.kind = StoreKind::pairs;
+  plan.chip_size = config.chips.size;
+  plan.inputs = config.inputs;
+  plan.pixel_size = config.resolution;
+  plan.block_size = config.chips.block_size;
+  plan.config_hash = options.config_hash;
+  StoreBuilder store(plan, scenes, config.sensor);
 
   PairSummary summary;
-  StoreManifest manifest;
-  std::int64_t next_index = 0;
+  std::vector<StoreScene> described;
   for (const SceneSpec* spec : scenes) {
     const auto scene_number = static_cast<std::uint64_t>(spec - config.scenes.data());
-    const ScenePairing pairing = pair_scene(config, *spec, scene_number, storage, writer, next_index);
+    const ScenePairing pairing = pair_scene(config, *spec, scene_number, store);
     log::info("scene " + spec->id + ": " + std::to_string(pairing.tally.written) + " chips kept of " +
               std::to_string(pairing.tally.planned) + " planned (" +
               std::to_string(pairing.tally.below_min_valid) + " below min_valid)");
-    manifest.scenes.push_back(pairing.scene);
+    described.push_back(pairing.scene);
     ++summary.scenes;
     summary.planned += pairing.tally.planned;
     summary.below_min_valid += pairing.tally.below_min_valid;
@@ -72,15 +66,7 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
   }
   if (summary.written == 0) fail_no_chips(summary, config);
 
-  manifest.kind = StoreKind::pairs;
-  manifest.chip_size = config.chips.size;
-  manifest.bands = store_bands(config.inputs, storage, config.sensor);
-  manifest.colour_encoding = ColourEncoding::cielab8;
-  manifest.crs = shared_crs(manifest.scenes);
-  manifest.pixel_size = config.resolution;
-  manifest.config_hash = options.config_hash;
-  manifest.tinct_version = tinct_version();
-  writer.finish(manifest);
+  store.finish(std::move(described));
   log::info("pair: wrote " + std::to_string(summary.written) + " chips to " + options.output.string());
   return summary;
 }

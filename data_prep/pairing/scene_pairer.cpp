@@ -6,7 +6,6 @@
 #include <memory>
 #include <vector>
 
-#include "chips/band_storage.hpp"
 #include "chips/chip_plan.hpp"
 #include "pairing/colour_composer.hpp"
 #include "pairing/coregistration_check.hpp"
@@ -155,25 +154,19 @@ class ScenePairer {
 };
 
 StoreScene describe(const SceneSpec& spec, const Scene& scene, const ShiftReport& shift) {
-  StoreScene entry;
-  entry.id = spec.id;
-  entry.path = spec.bands.front().file.string();
-  entry.date = spec.date;
-  entry.crs = scene.grid().crs_wkt;
+  StoreScene entry = store_scene(spec, scene.grid());
   entry.notes["colour_shift_dx_px"] = std::to_string(shift.dx_px);
   entry.notes["colour_shift_dy_px"] = std::to_string(shift.dy_px);
   entry.notes["colour_shift_px"] = std::to_string(shift.magnitude_px);
   entry.notes["colour_shift_m"] = std::to_string(shift.magnitude_m);
   entry.notes["colour_shift_windows"] = std::to_string(shift.windows);
-  entry.notes["grid_width"] = std::to_string(scene.grid().width);
-  entry.notes["grid_height"] = std::to_string(scene.grid().height);
   return entry;
 }
 
 }  // namespace
 
 ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::uint64_t scene_number,
-                        StorageType storage, StoreWriter& writer, std::int64_t& next_index) {
+                        StoreBuilder& store) {
   const ScenePairer pairer(config, spec);
   const TargetGrid& grid = pairer.scene().grid();
   for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
@@ -185,9 +178,7 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
   ScenePairing result{describe(spec, pairer.scene(), shift), {}};
   const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
   result.tally.planned = static_cast<std::int64_t>(windows.size());
-  const int size = config.chips.size;
-  std::vector<float> inputs, f32;
-  std::vector<std::uint16_t> u16;
+  std::vector<float> inputs;
   std::vector<std::uint8_t> lab, valid;
   Progress progress("pair " + spec.id, result.tally.planned, "chips");
   std::int64_t seen = 0;
@@ -199,19 +190,7 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
       ++result.tally.below_min_valid;
       continue;
     }
-    ChipRecord record;
-    record.index = next_index++;
-    record.scene = spec.id;
-    record.col = window.col;
-    record.row = window.row;
-    record.x = grid.geotransform[0] + (window.col + size / 2.0) * grid.geotransform[1];
-    record.y = grid.geotransform[3] + (window.row + size / 2.0) * grid.geotransform[5];
-    record.date = spec.date;
-    record.valid_fraction = valid_fraction;
-    record.block = block_of(record.x, record.y, config.chips.block_size);
-    to_stored_values(inputs, valid, storage, u16, f32);
-    const void* bands = storage == StorageType::uint16 ? static_cast<const void*>(u16.data()) : f32.data();
-    writer.add(record, bands, lab.data(), valid.data());
+    store.add_chip(spec, grid, window.col, window.row, valid_fraction, inputs, valid, lab.data());
     ++result.tally.written;
   }
   progress.finish();

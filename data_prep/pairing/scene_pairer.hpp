@@ -1,12 +1,12 @@
 // Pairs one scene: opens it on its grid, fits the colour stretch, checks the
 // colour's co-registration, cuts chips by the plan, keeps those with enough valid
-// pixels and hands each (input bands, Lab colour, validity) to the store writer.
+// pixels and hands each (input bands, Lab colour, validity) to the store.
 #pragma once
 
 #include <cstdint>
 
+#include "chips/store_builder.hpp"
 #include "chips/store_manifest.hpp"
-#include "chips/store_writer.hpp"
 #include "pairing/pair_config.hpp"
 
 namespace tinct {
@@ -22,8 +22,7 @@ struct ScenePairing {
   PairTally tally;
 };
 
-// `next_index` is the store-wide index of the next chip; advanced per chip written.
 ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::uint64_t scene_number,
-                        StorageType storage, StoreWriter& writer, std::int64_t& next_index);
+                        StoreBuilder& store);
 
 }  // namespace tinct
