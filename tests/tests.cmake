@@ -84,3 +84,9 @@ set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIR
 tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
 # --force replacement killed by strace at each of its steps; a store written onto a full tmpfs.
 tinct_script_test(store_replacement ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_replacement.py)
+
+# The GeoTIFF writer alone: written files read back by gdalinfo -json and GDAL's COG validator.
+add_executable(tinct_geotiff_tool tests/reference/geotiff_tool.cpp)
+target_link_libraries(tinct_geotiff_tool PRIVATE tinct_data)
+tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/geotiff_writer_vs_gdal.py $<TARGET_FILE:tinct_geotiff_tool>)
