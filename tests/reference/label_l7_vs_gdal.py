@@ -10,6 +10,8 @@ Checked against outside references:
   pixel (4, 4) is the label's pixel, for these and for seeded random points placed
   with GDAL's osr (its PROJ);
 - chips.csv centres equal the geotransform applied to col/row + 4 (section 6);
+- the manifest's CRS (and its scene's) is GDAL's CRS of the file (osr IsSame), and
+  its pixel_size GDAL's pixel size;
 - a point too close to the edge for a full chip is in the drop report."""
 import csv
 import os
@@ -21,7 +23,7 @@ import numpy as np
 from osgeo import gdal, osr
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
-from store import Store  # noqa: E402
+from store import Store, grid_problems  # noqa: E402
 from synthetic import Checks  # noqa: E402
 
 TINCT = os.environ["TINCT"]
@@ -117,6 +119,8 @@ scenes:
     centre = store.bands[by_id["olinda-b"], :, SIZE // 2, SIZE // 2].tolist()
     checks.check(centre == [61, 131, 111], f"(-34.85, -7.96): DN {centre}, REFERENCES.md gives 61 131 111")
     checks.check(store.valid.all(), "every pixel of L7 is valid")
+    problems = grid_problems(store, L7)
+    checks.check(not problems, f"the store's CRS and pixel size are the scene's as GDAL reads it: {problems}")
 
     with open(os.path.join(work, "l7.labels", "dropped.csv"), newline="") as f:
         dropped = list(csv.DictReader(f))

@@ -8,6 +8,8 @@ Checked against outside references:
   np.percentile 2 / 98, numpy's default linear rule) over the same pixels;
 - chips.csv centres equal the geotransform (REFERENCES.md: origin 288776.25,
   9120760.75, 28.5 m pixels) applied to the chip's col/row;
+- the manifest's CRS (and each scene's) is GDAL's CRS of the file (osr IsSame), and
+  its pixel_size GDAL's pixel size;
 - the colour equals scikit-image 0.19 rgb2lab of the 2-98 % stretched composite
   (stretch percentiles by numpy over the whole scene), within 2 codes as
   REFERENCES.md section 2 allows for the 8-bit encoding."""
@@ -21,7 +23,7 @@ from osgeo import gdal
 from skimage.color import rgb2lab
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
-from store import Store  # noqa: E402
+from store import Store, grid_problems  # noqa: E402
 from synthetic import Checks  # noqa: E402
 
 TINCT = os.environ["TINCT"]
@@ -99,7 +101,8 @@ scenes:
 
     shift = float(store.manifest["scenes"][0]["notes"]["colour_shift_px"])
     checks.check(shift < 0.1, f"colour from the scene's own bands: shift {shift} px should be ~0")
-    checks.check(store.manifest["crs"] != "", "store CRS recorded")
+    problems = grid_problems(store, L7)
+    checks.check(not problems, f"the store's CRS and pixel size are the scene's as GDAL reads it: {problems}")
     blocks = {c["block"] for c in store.chips}
     checks.check(len(blocks) > 4, f"3 km blocks over a 10 x 10 km subset: {len(blocks)}")
 

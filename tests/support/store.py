@@ -6,6 +6,7 @@ import os
 
 import numpy as np
 import yaml
+from osgeo import gdal, osr
 
 
 class Store:
@@ -28,3 +29,25 @@ class Store:
                        if os.path.exists(colour) else None)
         with open(os.path.join(path, "chips.csv"), newline="") as f:
             self.chips = list(csv.DictReader(f))
+
+
+def grid_problems(store, raster_path):
+    """How the store's CRS and pixel size differ from the raster's as GDAL reads them
+    (an empty list when the manifest's crs and every scene's crs are GDAL's CRS, and
+    pixel_size is GDAL's pixel size to 1e-6 of a pixel: the tolerance below which
+    tinct takes a raster to lie on its grid and reads it without warping, so a file
+    whose geotransform says 28.49999999927454 gives a 28.5 m store)."""
+    ds = gdal.Open(raster_path)
+    scene_crs = osr.SpatialReference()
+    scene_crs.ImportFromWkt(ds.GetProjection())
+    gt = ds.GetGeoTransform()
+    problems = []
+    for where, wkt in [("manifest crs", store.manifest["crs"])] + [
+            (f"scene {s['id']} crs", s["crs"]) for s in store.manifest["scenes"]]:
+        crs = osr.SpatialReference()
+        if not wkt or crs.ImportFromWkt(wkt) != 0 or crs.IsSame(scene_crs) != 1:
+            problems.append(f"{where} is not GDAL's CRS of {raster_path} ({scene_crs.GetName()})")
+    pixel = float(store.manifest["pixel_size"])
+    if not all(abs(pixel - abs(size)) <= 1e-6 * pixel for size in (gt[1], gt[5])):
+        problems.append(f"pixel_size {pixel} differs from GDAL's geotransform {gt[1]}, {gt[5]}")
+    return problems
