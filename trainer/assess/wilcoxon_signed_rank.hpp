@@ -28,7 +28,10 @@ struct WilcoxonResult {
   double z = 0;                    // normal method only, as SciPy's zstatistic
   int n_used = 0;                  // non-zero differences
   int zeros_dropped = 0;
-  bool ties = false;               // some |d| are equal (mid-ranks used)
+  // Some |d| are equal (mid-ranks used). Equality is exact, as in SciPy: differences of
+  // metrics computed from counts (0.85 - 0.83 against 0.02 - 0.0) may miss by an ulp, so
+  // round them (say to 1e-9) first if they should tie.
+  bool ties = false;
   WilcoxonMethod method = WilcoxonMethod::normal;  // the one used: exact or normal
   bool defined = false;            // false when every difference is 0: p = 1, nothing tested
 };
