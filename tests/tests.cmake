@@ -44,6 +44,25 @@ catch_discover_tests(tinct_reference_tests PROPERTIES
   FIXTURES_REQUIRED "colour_reference\\\\\\\\;metrics_reference"
   ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
 
+# Paired statistics, temperature scaling and area of applicability against SciPy, statsmodels
+# and numpy the same way: one script per idea writes its CSVs (one fixture each),
+# tinct_assess_reference_tests reads them.
+foreach(reference paired_statistics temperature applicability)
+  add_test(NAME make_${reference}_reference
+           COMMAND ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/make_${reference}_reference.py)
+  set_tests_properties(make_${reference}_reference PROPERTIES
+    FIXTURES_SETUP ${reference}_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+endforeach()
+add_executable(tinct_assess_reference_tests
+  tests/reference/test_applicability_reference.cpp
+  tests/reference/test_paired_statistics_reference.cpp
+  tests/reference/test_temperature_reference.cpp)
+target_link_libraries(tinct_assess_reference_tests PRIVATE tinct_assess tinct_catch_main)
+# Three fixtures, the list's ';' escaped for catch_discover_tests as above.
+catch_discover_tests(tinct_assess_reference_tests PROPERTIES
+  FIXTURES_REQUIRED "paired_statistics_reference\\\\\\\\;temperature_reference\\\\\\\\;applicability_reference"
+  ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+
 # tinct pair: real data, GDAL's own warper, co-registration and bad input.
 tinct_script_test(reference_pair_l7_vs_gdal ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_l7_vs_gdal.py)
 set_tests_properties(reference_pair_l7_vs_gdal PROPERTIES FIXTURES_REQUIRED debian_data)
