@@ -230,7 +230,9 @@ TEST_CASE("the sample report checks out and dangling references are named") {
 
 TEST_CASE("the terminal table carries scores, comparisons, findings and cautions") {
   const std::string table = study_results_table(testing::sample_study_report("preview.png"));
-  CHECK(contains(table, "5 labels per class  pretrained"));
+  CHECK(contains(table, "5 per class  pretrained "));
+  CHECK(contains(table, "logistic 3x3 (baseline)"));
+  CHECK(contains(table, "0.098 -> 0.040"));  // ECE before -> after
   CHECK(contains(table, "pretrained - scratch"));
   CHECK(contains(table, "no evidence of a difference"));
   CHECK(contains(table, "No deep arm beats it:"));

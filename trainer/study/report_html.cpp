@@ -1,16 +1,13 @@
 #include "study/report_html.hpp"
 
-#include <set>
-
-#include "study/arm_style.hpp"
 #include "study/comparison_sentence.hpp"
 #include "study/confusion_heatmap.hpp"
 #include "study/data_uri.hpp"
 #include "study/label_efficiency_chart.hpp"
 #include "study/markup_text.hpp"
 #include "study/reliability_chart.hpp"
-#include "study/report_numbers.hpp"
 #include "study/report_style.hpp"
+#include "study/report_tables.hpp"
 #include "study/run_scores_chart.hpp"
 #include "study/study_findings.hpp"
 #include "study/training_curve_chart.hpp"
@@ -22,30 +19,8 @@ namespace {
 
 std::string esc(const std::string& text) { return escape_markup(text); }
 
-// Cell classes: "num" right-aligned figures, "label" names kept on one line, "" free text.
-std::string cell(const std::string& text, const std::string& kind = "") {
-  return (kind.empty() ? std::string("<td>") : "<td class=\"" + kind + "\">") + esc(text) + "</td>";
-}
-
-// Headers aligned like their columns: the columns from first_number to last_number hold figures.
-std::string header_cells(const std::vector<std::string>& names, std::size_t first_number,
-                         std::size_t last_number = 99) {
-  std::string out = "<tr>";
-  for (std::size_t i = 0; i < names.size(); ++i) {
-    const bool number = i >= first_number && i <= last_number;
-    out += std::string(number ? "<th class=\"num\">" : "<th>") + esc(names[i]) + "</th>";
-  }
-  return out + "</tr>\n";
-}
-
 std::string figure(const std::string& svg, const std::string& caption) {
   return "<figure>\n" + svg + "<figcaption>" + esc(caption) + "</figcaption>\n</figure>\n";
-}
-
-std::string swatch(const StudyReport& report, const std::string& arm) {
-  const ArmStyle style = arm_style(report, arm);
-  return "<span class=\"swatch" + std::string(style.hollow ? " hollow" : "") + "\" style=\"background:" +
-         esc(style.colour) + ";border-color:" + esc(style.colour) + "\"></span>";
 }
 
 std::string page_header(const StudyReport& report) {
@@ -116,32 +91,6 @@ std::string findings_section(const StudyReport& report) {
   return out + "</section>\n";
 }
 
-std::string summary_rows(const StudyReport& report) {
-  std::string out;
-  for (std::size_t b = 0; b < report.budgets.size(); ++b) {
-    bool first = true;
-    for (const auto& arm : report.arms) {
-      const ArmBudgetSummary* s = find_summary(report, arm.name, b);
-      if (!s) continue;
-      std::string classes = arm.kind == ArmKind::baseline ? "baseline" : "";
-      if (first && b > 0) classes += classes.empty() ? "group" : " group";
-      out += "<tr" + (classes.empty() ? std::string() : " class=\"" + classes + "\"") + ">";
-      out += cell(first ? budget_label(report.budgets[b]) : "", "label");
-      out += "<td class=\"label\">" + swatch(report, arm.name) + esc(arm.name) + "</td>" +
-             cell(arm_kind_name(arm.kind));
-      out += cell(std::to_string(s->macro_f1.n), "num") + cell(fixed_text(s->macro_f1.mean, 3), "num") +
-             cell(fixed_text(s->macro_f1.sd, 3), "num") +
-             cell(fixed_text(s->macro_f1.low, 3) + " to " + fixed_text(s->macro_f1.high, 3), "num") +
-             cell(fixed_text(s->accuracy.mean, 3), "num") + cell(fixed_text(s->balanced_accuracy.mean, 3), "num") +
-             cell(fixed_text(s->kappa.mean, 3), "num") +
-             cell(s->ece_before ? fixed_text(s->ece_before->mean, 3) : "-", "num") +
-             cell(s->ece_after ? fixed_text(s->ece_after->mean, 3) : "-", "num") + "</tr>\n";
-      first = false;
-    }
-  }
-  return out;
-}
-
 std::string efficiency_section(const StudyReport& report) {
   std::string out = "<section id=\"efficiency\">\n<h2>Label efficiency</h2>\n";
   const std::string chart = label_efficiency_chart(report);
@@ -150,56 +99,17 @@ std::string efficiency_section(const StudyReport& report) {
                         "the 95 % interval of the mean";
   if (!report.summary_interval.empty()) caption += " (" + report.summary_interval + ")";
   caption += ". Pixel baselines are grey and dashed with hollow markers. Hover a marker for its values.";
-  out += figure(chart, caption);
-  out += "<table>\n" +
-         header_cells({"label budget", "arm", "kind", "runs", "macro F1", "sd", "95 % interval", "accuracy",
-                       "balanced accuracy", "kappa", "ECE before", "ECE after"},
-                      3) +
-         summary_rows(report) + "</table>\n";
+  out += figure(chart, caption) + scores_table_html(report);
   out += "<p class=\"note\">Means over seeds and folds. ECE: expected calibration error (10 bins, top "
          "class), before and after temperature scaling on each run's validation chips; lower is "
          "better.</p>\n";
   return out + "</section>\n";
 }
 
-std::string optional_p(const std::optional<double>& p) { return p ? p_text(*p) : "-"; }
-
 std::string comparisons_section(const StudyReport& report) {
   if (report.comparisons.empty()) return "";
-  std::string out = "<section id=\"comparisons\">\n<h2>Paired comparisons</h2>\n<table>\n" +
-                    header_cells({"label budget", "first", "second", "metric", "difference", "95 % interval",
-                                  "Wilcoxon p", "McNemar p", "Holm p", "pairs", "verdict"},
-                                 4, 9);
-  std::set<std::string> resamplings;
-  bool corrected_t = false;
-  for (const auto& c : report.comparisons) {
-    const int decimals = std::max(3, decimals_keeping_sign({c.mean_difference, c.low, c.high}));
-    out += "<tr>" + cell(budget_label(report.budgets[c.budget]), "label") + cell(c.arm_a, "label") +
-           cell(c.arm_b, "label") + cell(metric_name(c.metric), "label") + cell(signed_text(c.mean_difference, decimals), "num") +
-           cell(fixed_text(c.low, decimals) + " to " + fixed_text(c.high, decimals), "num") +
-           cell(optional_p(c.wilcoxon_p), "num") + cell(optional_p(c.mcnemar_p), "num") +
-           cell(optional_p(c.holm_p), "num") + cell(std::to_string(c.pairs), "num") + cell(verdict_words(c), "verdict") +
-           "</tr>\n";
-    if (!c.resampling.empty()) resamplings.insert(c.resampling);
-    corrected_t = corrected_t || c.corrected_t_p.has_value();
-  }
-  out += "</table>\n<p class=\"note\">Runs are paired by seed and fold: both arms saw the same training, "
-         "validation and test chips. Difference: first arm minus second, mean over the pairs. Interval: paired "
-         "bootstrap of the mean difference";
-  std::string list;
-  for (const auto& r : resamplings) list += (list.empty() ? "" : "; ") + r;
-  if (!list.empty()) out += ", resampling " + esc(list);
-  out += ". Wilcoxon: signed-rank test over the paired runs, two-sided. McNemar: exact test on the "
-         "pooled test predictions. Holm: the Wilcoxon p values adjusted for the number of comparisons.";
-  if (corrected_t) {
-    out += " Corrected resampled t (Nadeau and Bengio 2003):";
-    for (const auto& c : report.comparisons) {
-      if (!c.corrected_t_p) continue;
-      out += " " + esc(c.arm_a + " vs " + c.arm_b + ", " + budget_short(report.budgets[c.budget])) + ": p = " +
-             esc(p_text(*c.corrected_t_p)) + ";";
-    }
-  }
-  return out + "</p>\n</section>\n";
+  return "<section id=\"comparisons\">\n<h2>Paired comparisons</h2>\n" + comparisons_table_html(report) +
+         "</section>\n";
 }
 
 std::string runs_section(const StudyReport& report) {
@@ -276,25 +186,14 @@ std::string previews_section(const StudyReport& report) {
 
 std::string failed_section(const StudyReport& report) {
   if (report.failed_runs.empty()) return "";
-  std::string out = "<section id=\"failed\">\n<h2>Failed runs</h2>\n<p class=\"lead\">These runs ended with an "
-                    "error and are left out of every figure and statistic above.</p>\n<table>\n" +
-                    header_cells({"arm", "label budget", "seed", "fold", "error"}, 2, 3);
-  for (const auto& f : report.failed_runs) {
-    out += "<tr>" + cell(f.arm, "label") + cell(budget_label(report.budgets[f.budget]), "label") +
-           cell(std::to_string(f.seed), "num") + cell(std::to_string(f.fold), "num") + cell(f.message) + "</tr>\n";
-  }
-  return out + "</table>\n</section>\n";
+  return "<section id=\"failed\">\n<h2>Failed runs</h2>\n<p class=\"lead\">These runs ended with an error and "
+         "are left out of every figure and statistic above.</p>\n" +
+         failed_runs_table_html(report) + "</section>\n";
 }
 
 std::string design_section(const StudyReport& report) {
-  std::string out = "<section id=\"design\">\n<h2>Study design</h2>\n<table>\n" +
-                    header_cells({"arm", "kind", "what it is"}, 99);
-  for (const auto& arm : report.arms) {
-    out += std::string(arm.kind == ArmKind::baseline ? "<tr class=\"baseline\">" : "<tr>") + "<td class=\"label\">" +
-           swatch(report, arm.name) + esc(arm.name) + "</td>" + cell(arm_kind_name(arm.kind)) +
-           cell(arm.description) + "</tr>\n";
-  }
-  out += "</table>\n<p class=\"note\">Label budgets:";
+  std::string out = "<section id=\"design\">\n<h2>Study design</h2>\n" + arms_table_html(report) +
+                    "<p class=\"note\">Label budgets:";
   for (std::size_t b = 0; b < report.budgets.size(); ++b) {
     out += std::string(b ? ";" : "") + " " + esc(budget_label(report.budgets[b]));
   }
@@ -306,17 +205,9 @@ std::string design_section(const StudyReport& report) {
 }
 
 std::string setup_section(const StudyReport& report) {
-  const auto& v = report.versions;
-  std::string out = "<section id=\"setup\">\n<h2>Configuration and versions</h2>\n<table>\n" +
-                    header_cells({"component", "version"}, 99);
-  const std::pair<const char*, const std::string*> rows[] = {
-      {"tinct", &v.tinct}, {"LibTorch", &v.libtorch}, {"GDAL", &v.gdal}, {"OpenCV", &v.opencv}};
-  for (const auto& [name, version] : rows) {
-    out += "<tr>" + cell(name) + cell(version->empty() ? "not recorded" : *version) + "</tr>\n";
-  }
-  out += "</table>\n<h3>Study config (resolved)</h3>\n<pre><code>" +
-         esc(report.config_text.empty() ? "(not recorded)" : report.config_text) + "</code></pre>\n";
-  return out + "</section>\n";
+  return "<section id=\"setup\">\n<h2>Configuration and versions</h2>\n" + versions_table_html(report.versions) +
+         "<h3>Study config (resolved)</h3>\n<pre><code>" +
+         esc(report.config_text.empty() ? "(not recorded)" : report.config_text) + "</code></pre>\n</section>\n";
 }
 
 std::string footer(const StudyReport& report) {

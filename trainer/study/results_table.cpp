@@ -49,37 +49,48 @@ class TextTable {
   std::vector<std::vector<std::string>> rows_;
 };
 
-std::string optional_summary(const std::optional<Summary>& s) { return s ? fixed_text(s->mean, 3) : "-"; }
 std::string optional_p(const std::optional<double>& p) { return p ? p_text(*p) : "-"; }
 
+// "5 per class", "25 %", "all": short enough for a column.
+std::string budget_column(const LabelBudget& budget) {
+  return budget.kind == BudgetKind::per_class ? budget_short(budget) + " per class" : budget_short(budget);
+}
+
+std::string ece_text(const ArmBudgetSummary& s) {
+  if (!s.ece_before && !s.ece_after) return "-";
+  return (s.ece_before ? fixed_text(s.ece_before->mean, 3) : "-") + " -> " +
+         (s.ece_after ? fixed_text(s.ece_after->mean, 3) : "-");
+}
+
 std::string scores_table(const StudyReport& report) {
-  TextTable table({"budget", "arm", "kind", "runs", "macro F1", "sd", "95 % interval", "accuracy",
-                   "bal. acc.", "kappa", "ECE before", "ECE after"},
-                  {false, false, false, true, true, true, false, true, true, true, true, true});
+  TextTable table({"budget", "arm", "runs", "macro F1", "95 % interval", "sd", "accuracy", "kappa",
+                   "ECE before -> after"},
+                  {false, false, true, true, true, true, true, true, false});
   for (std::size_t b = 0; b < report.budgets.size(); ++b) {
     for (const auto& arm : report.arms) {
       const ArmBudgetSummary* s = find_summary(report, arm.name, b);
       if (!s) continue;
-      table.add({budget_label(report.budgets[b]), arm.name, arm_kind_name(arm.kind),
-                 std::to_string(s->macro_f1.n), fixed_text(s->macro_f1.mean, 3), fixed_text(s->macro_f1.sd, 3),
-                 fixed_text(s->macro_f1.low, 3) + " to " + fixed_text(s->macro_f1.high, 3),
-                 fixed_text(s->accuracy.mean, 3), fixed_text(s->balanced_accuracy.mean, 3),
-                 fixed_text(s->kappa.mean, 3), optional_summary(s->ece_before), optional_summary(s->ece_after)});
+      const std::string name = arm.name + (arm.kind == ArmKind::baseline ? " (baseline)" : "");
+      table.add({budget_column(report.budgets[b]), name, std::to_string(s->macro_f1.n),
+                 fixed_text(s->macro_f1.mean, 3), fixed_text(s->macro_f1.low, 3) + " to " + fixed_text(s->macro_f1.high, 3),
+                 fixed_text(s->macro_f1.sd, 3), fixed_text(s->accuracy.mean, 3), fixed_text(s->kappa.mean, 3),
+                 ece_text(*s)});
     }
   }
   return table.str();
 }
 
+// The verdicts are in the findings below, in words.
 std::string comparisons_table(const StudyReport& report) {
-  TextTable table({"budget", "comparison (first minus second)", "metric", "difference", "95 % interval",
-                   "Wilcoxon p", "McNemar p", "Holm p", "pairs", "verdict"},
-                  {false, false, false, true, false, true, true, true, true, false});
+  TextTable table({"budget", "first - second", "metric", "difference", "95 % interval", "Wilcoxon p",
+                   "McNemar p", "Holm p", "pairs"},
+                  {false, false, false, true, true, true, true, true, true});
   for (const auto& c : report.comparisons) {
     const int decimals = std::max(3, decimals_keeping_sign({c.mean_difference, c.low, c.high}));
-    table.add({budget_label(report.budgets[c.budget]), c.arm_a + " - " + c.arm_b, metric_name(c.metric),
+    table.add({budget_column(report.budgets[c.budget]), c.arm_a + " - " + c.arm_b, metric_name(c.metric),
                signed_text(c.mean_difference, decimals),
                fixed_text(c.low, decimals) + " to " + fixed_text(c.high, decimals), optional_p(c.wilcoxon_p),
-               optional_p(c.mcnemar_p), optional_p(c.holm_p), std::to_string(c.pairs), verdict_words(c)});
+               optional_p(c.mcnemar_p), optional_p(c.holm_p), std::to_string(c.pairs)});
   }
   return table.str();
 }

@@ -15,8 +15,9 @@ struct Point {
 };
 
 struct Stroke {
-  Stroke(std::string colour_ = "#222222", double width_ = 1, std::string dash_ = "", double opacity_ = 1)
-      : colour(std::move(colour_)), width(width_), dash(std::move(dash_)), opacity(opacity_) {}
+  Stroke(std::string line_colour = "#222222", double line_width = 1, std::string dash_pattern = "",
+         double line_opacity = 1)
+      : colour(std::move(line_colour)), width(line_width), dash(std::move(dash_pattern)), opacity(line_opacity) {}
   std::string colour;
   double width;
   std::string dash;  // SVG stroke-dasharray, e.g. "6 3"; empty: solid
