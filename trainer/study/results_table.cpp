@@ -118,6 +118,7 @@ std::string wrapped(const std::string& text, std::size_t width, const std::strin
 }
 
 std::string study_results_table(const StudyReport& report, std::size_t width) {
+  check_study_report(report);
   std::string out = wrapped("Study " + report.name + ": scores on test chips per arm and label budget", width) + "\n";
   if (!report.summary_interval.empty()) out += "(95 % interval: " + report.summary_interval + ")\n";
   out += scores_table(report);

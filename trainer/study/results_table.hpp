@@ -10,6 +10,7 @@
 
 namespace tinct {
 
+// Checks the report first (check_study_report).
 std::string study_results_table(const StudyReport& report, std::size_t width = 100);
 
 // Words of `text` on lines of at most `width` characters, each line after the first
