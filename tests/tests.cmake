@@ -101,3 +101,17 @@ set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIR
 
 # Stores: a second writer is refused while the first, stopped mid-write by strace, finishes.
 tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
+
+# The study report (no LibTorch): a hand-made sample (invented numbers) written as report.html,
+# parsed as HTML, every inline SVG as XML, and rendered to a PNG by headless Chromium without
+# console errors (study_report_render installs Debian's chromium if it can, else is skipped
+# saying why). The PNG stays in the test data folder to be looked at.
+add_executable(tinct_sample_report tests/integration/write_sample_report.cpp
+                                   tests/support/sample_study_report.cpp)
+target_include_directories(tinct_sample_report PRIVATE ${CMAKE_SOURCE_DIR}/tests/support)
+target_link_libraries(tinct_sample_report PRIVATE tinct_study)
+tinct_script_test(study_report_html ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_report.py
+  $<TARGET_FILE:tinct_sample_report> ${TINCT_TEST_DATA}/study_report_html)
+tinct_script_test(study_report_render ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_report.py
+  $<TARGET_FILE:tinct_sample_report> ${TINCT_TEST_DATA}/study_report_render --render)
+set_tests_properties(study_report_render PROPERTIES SKIP_RETURN_CODE 77)
