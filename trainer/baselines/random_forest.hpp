@@ -1,7 +1,8 @@
 // A random forest on pixel features (OpenCV's cv::ml::RTrees, Breiman 2001): each tree
 // grown on a bootstrap sample of the training rows, trying a random subset of features
 // at each node; balanced class weights (OpenCV's priors multiply each row's weight by its
-// class's); seeded through OpenCV's per-thread RNG, which the training consumes.
+// class's); seeded through OpenCV's RNG of the calling thread (cv::theRNG() is per thread),
+// so forests on several threads at once stay reproducible.
 #pragma once
 
 #include <cstdint>
