@@ -11,6 +11,7 @@ packages=(
   nlohmann-json3-dev libssl-dev
   # used by the reference tests (Debian's /usr/bin/python3) and the demo
   python3-numpy python3-gdal python3-sklearn python3-scipy python3-skimage python3-yaml proj-bin
+  python3-statsmodels
   # crash tests stop or kill tinct at a chosen system call
   strace
 )
