@@ -1,9 +1,10 @@
 """Two tinct processes writing one store: the first is stopped at a chosen point
-inside its write (strace stops it with SIGSTOP at its first rename, the
-manifest's into NAME.partial/, when every .bin file is written), a second `tinct pair` or `tinct
-label` into the same store is refused at once naming the store and the first
-one's pid and leaves the first one's NAME.partial/ alone; the first then finishes
-a store equal byte for byte to an uninterrupted run's, and no lock file stays."""
+inside its write (strace stops it with SIGSTOP at its first rename, a file renamed
+into NAME.partial/ after the last chip: pair's manifest, label's drop report); a
+second `tinct pair` or `tinct label` into the same store is refused at once, naming
+the store and the first one's pid, and leaves the first one's NAME.partial/ alone;
+the first then finishes a store equal byte for byte to an uninterrupted run's, and
+no lock file stays."""
 import os
 import shutil
 import signal
