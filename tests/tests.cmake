@@ -79,3 +79,11 @@ tinct_script_test(finetune_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integ
 tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# Sub-pixel co-registration (upsampled DFT) against scikit-image on the real Landsat 7 subset.
+add_executable(tinct_shift_tool tests/reference/shift_tool.cpp)
+target_link_libraries(tinct_shift_tool PRIVATE tinct_data)
+tinct_script_test(reference_coregistration_l7_vs_skimage ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/coregistration_l7_vs_skimage.py $<TARGET_FILE:tinct_shift_tool>)
+set_tests_properties(reference_coregistration_l7_vs_skimage PROPERTIES FIXTURES_REQUIRED debian_data)
+
