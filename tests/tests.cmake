@@ -87,3 +87,6 @@ tinct_script_test(reference_coregistration_l7_vs_skimage ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/coregistration_l7_vs_skimage.py $<TARGET_FILE:tinct_shift_tool>)
 set_tests_properties(reference_coregistration_l7_vs_skimage PROPERTIES FIXTURES_REQUIRED debian_data)
 
+
+# Preview PNGs people read.
+tinct_script_test(pretrain_previews ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_previews.py)
