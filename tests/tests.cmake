@@ -87,6 +87,10 @@ tinct_script_test(reference_coregistration_l7_vs_skimage ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/coregistration_l7_vs_skimage.py $<TARGET_FILE:tinct_shift_tool>)
 set_tests_properties(reference_coregistration_l7_vs_skimage PROPERTIES FIXTURES_REQUIRED debian_data)
 
-
-# Preview PNGs people read.
+# What a new user trips over: command-line and config messages, silent traps, what check
+# refuses, sensor profiles, readable previews.
+tinct_script_test(cli_messages ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/cli_messages.py)
+tinct_script_test(config_traps ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/config_traps.py)
+tinct_script_test(check_refusals ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/check_refusals.py)
+tinct_script_test(sensor_profiles ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/sensor_profiles.py)
 tinct_script_test(pretrain_previews ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_previews.py)

@@ -14,15 +14,16 @@ std::string count_of(std::int64_t count, const std::string& one, const std::stri
   return std::to_string(count) + " " + (count == 1 ? one : many);
 }
 
+// A missing store is a missing input: a usage error (exit 2), as everywhere.
 void check_store_folder(const fs::path& store) {
   if (fs::is_directory(store)) return;
   fs::path partial = store;
   partial += ".partial";
   if (fs::exists(partial)) {
-    fail_runtime("store " + store.string() + " not found; " + partial.string() +
+    fail_usage("store " + store.string() + " not found; " + partial.string() +
                  " is an unfinished write: build the store again");
   }
-  fail_runtime("store " + store.string() + " not found; check the path");
+  fail_usage("store " + store.string() + " not found; check the path");
 }
 
 template <typename Stored>
