@@ -163,30 +163,30 @@ LabelChipSettings read_chips(const ConfigNode& node) {
 void judge_undated_labels(const ConfigNode& labels, const LabelConfig& config) {
   const LabelSourceSettings& s = config.labels;
   if (!s.date_column.empty() || !s.raster_date.empty()) return;
-  long first = 0, last = 0;
-  std::string first_date, last_date;
+  const SceneSpec* earliest = &config.scenes.front();
+  const SceneSpec* latest = earliest;
   for (const SceneSpec& scene : config.scenes) {
-    const long day = days_since_epoch(scene.date);
-    if (first_date.empty() || day < first) first = day, first_date = scene.date;
-    if (last_date.empty() || day > last) last = day, last_date = scene.date;
+    if (days_since_epoch(scene.date) < days_since_epoch(earliest->date)) earliest = &scene;
+    if (days_since_epoch(scene.date) > days_since_epoch(latest->date)) latest = &scene;
   }
+  const long first = days_since_epoch(earliest->date), last = days_since_epoch(latest->date);
+  const std::string first_date = earliest->date, last_date = latest->date;
   const std::string span = "the scenes span " + first_date + " to " + last_date + " (" +
                            std::to_string(last - first) + " days)";
   if (s.dates_unknown) {
     log::info("labels.dates_unknown: each label takes the first covering scene in config order; " + span);
     return;
   }
+  const std::string key = s.raster.empty() ? "date" : "raster_date";
   if (last - first > config.match.max_days) {
-    const std::string key = s.raster.empty() ? "date" : "raster_date";
-    const std::string give = s.raster.empty() ? "name the labels' date column (labels.date: COLUMN)"
-                                              : "give the label raster's date (labels.raster_date: YYYY-MM-DD)";
+    const std::string give = s.raster.empty() ? "Name the labels' date column (labels.date: COLUMN)"
+                                              : "Give the label raster's date (labels.raster_date: YYYY-MM-DD)";
     labels.fail(key, "not given, so the labels are undated, but " + span + ", more than match.max_days " +
                          std::to_string(config.match.max_days) + ": each label would take whichever scene comes "
-                         "first. " + std::string(1, static_cast<char>(std::toupper(give[0]))) + give.substr(1) +
-                         ", or set labels.dates_unknown: true if the dates are truly unknown");
+                         "first. " + give + ", or set labels.dates_unknown: true if the dates are truly unknown");
   }
-  log::warning("the labels are undated (labels.date not given): each takes the first covering scene in config "
-               "order; " + span + ", within match.max_days " + std::to_string(config.match.max_days) +
+  log::warning("the labels are undated (labels." + key + " not given): each takes the first covering scene in "
+               "config order; " + span + ", within match.max_days " + std::to_string(config.match.max_days) +
                " (labels.dates_unknown: true says this is meant)");
 }
 
