@@ -105,9 +105,9 @@ with tempfile.TemporaryDirectory() as work:
         expect(f"{command}: label store unlike the pretrain run", tinct(work, command, tune), 2,
                "the stores do not suit the model (2 conflicts)",
                "tune.yaml: stores[0] (line 2): chips of 16 px, but the pretrain run",
-               "runs/pre (init.run, line 4) was trained on 32 px chips; make the label store with chips.size: 32",
+               "runs/pre (init.run, line 4): the encoder was trained on 32 px chips; make the label store with chips.size: 32",
                "tune.yaml: stores[0] (line 2): bands [red, nir], but the pretrain run",
-               "takes [nir, swir]; make the label store with inputs: [nir, swir], in this order")
+               "the encoder was trained on [nir, swir]; make the label store with inputs: [nir, swir], in this order")
     checks.check(not os.path.exists(os.path.join(work, "runs", "tune")), "no run folder for a refused config")
 
     # Made as the pretrain run says, the label store passes.

@@ -87,12 +87,12 @@ std::vector<std::string> store_conflicts_with_run(const ConfigNode& root, const 
   for (const ListedStore& store : listed_stores(root, stores)) {
     if (store.manifest.chip_size != artifact.chip_size) {
       conflicts.push_back(store.where + ": chips of " + std::to_string(store.manifest.chip_size) + " px, but " +
-                          the_run + " was trained on " + std::to_string(artifact.chip_size) +
+                          the_run + ": the encoder was trained on " + std::to_string(artifact.chip_size) +
                           " px chips; make the label store with chips.size: " + std::to_string(artifact.chip_size));
     }
     if (band_names(store.manifest) != run_bands) {
       conflicts.push_back(store.where + ": bands " + joined(band_names(store.manifest)) + ", but " + the_run +
-                          " takes " + joined(run_bands) + "; make the label store with inputs: " +
+                          ": the encoder was trained on " + joined(run_bands) + "; make the label store with inputs: " +
                           joined(run_bands) + ", in this order");
     }
   }
