@@ -99,6 +99,21 @@ tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)
 
+# Sub-pixel co-registration (upsampled DFT) against scikit-image on the real Landsat 7 subset.
+add_executable(tinct_shift_tool tests/reference/shift_tool.cpp)
+target_link_libraries(tinct_shift_tool PRIVATE tinct_data)
+tinct_script_test(reference_coregistration_l7_vs_skimage ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/coregistration_l7_vs_skimage.py $<TARGET_FILE:tinct_shift_tool>)
+set_tests_properties(reference_coregistration_l7_vs_skimage PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# What a new user trips over: command-line and config messages, silent traps, what check
+# refuses, sensor profiles, readable previews.
+tinct_script_test(cli_messages ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/cli_messages.py)
+tinct_script_test(config_traps ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/config_traps.py)
+tinct_script_test(check_refusals ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/check_refusals.py)
+tinct_script_test(sensor_profiles ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/sensor_profiles.py)
+tinct_script_test(pretrain_previews ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_previews.py)
+
 # Pixel baselines against scikit-learn on the real Landsat 7 subset: the tool writes features
 # and predictions for the splits the script chooses; the script fits scikit-learn on the same.
 add_executable(tinct_baseline_tool tests/reference/baseline_tool.cpp)

@@ -9,6 +9,10 @@
 
 namespace tinct {
 
+// Chip sides must be a multiple of this: the smallest total stride of the encoders
+// (compact 16; resnet18 and resnet34 need 32, which pretrain and finetune check).
+inline constexpr int kChipSizeMultiple = 16;
+
 struct ChipPlanSettings {
   int size = 64;          // pixels
   int stride = 64;        // pixels between grid windows

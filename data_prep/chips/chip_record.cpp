@@ -2,7 +2,7 @@
 
 #include <charconv>
 
-#include "chips/number_text.hpp"
+#include "util/number_text.hpp"
 #include "util/csv_field.hpp"
 #include "util/error.hpp"
 

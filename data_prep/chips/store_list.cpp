@@ -1,5 +1,7 @@
 #include "chips/store_list.hpp"
 
+#include "util/error.hpp"
+
 namespace fs = std::filesystem;
 
 namespace tinct {
@@ -25,6 +27,20 @@ std::vector<fs::path> read_store_list(const ConfigNode& root, StoreKind kind, in
   }
   bands = static_cast<int>(manifest.bands.size());
   return stores;
+}
+
+void require_store_kind(const fs::path& store, StoreKind kind, const std::string& option) {
+  const auto noun = [](StoreKind k) { return std::string(k == StoreKind::labels ? "label store" : "pair store"); };
+  if (!fs::exists(store / "manifest.yaml")) {
+    fail_usage(option + ": no chip store at " + store.string() + "; give a " + noun(kind) + " (made by " +
+               rebuild_command(kind) + ")");
+  }
+  const StoreKind found = read_manifest(store / "manifest.yaml").kind;
+  if (found != kind) {
+    fail_usage(option + ": " + store.string() + " is a " + noun(found) + " (made by " + rebuild_command(found) +
+               "); this needs a " + noun(kind) + ", made by " + rebuild_command(kind) +
+               (kind == StoreKind::labels ? " from field labels" : " from unlabelled scenes"));
+  }
 }
 
 }  // namespace tinct

@@ -14,4 +14,9 @@ namespace tinct {
 
 std::vector<std::filesystem::path> read_store_list(const ConfigNode& root, StoreKind kind, int& bands);
 
+// For a store named on the command line (`option`, e.g. "--on"): fails (usage) when
+// it is missing or of the other kind, saying which kind it is and how to make the
+// right one.
+void require_store_kind(const std::filesystem::path& store, StoreKind kind, const std::string& option);
+
 }  // namespace tinct

@@ -5,7 +5,7 @@
 #include <cmath>
 #include <set>
 
-#include "chips/number_text.hpp"
+#include "util/number_text.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
 

@@ -15,6 +15,7 @@ std::string count_of(std::int64_t count, const std::string& one, const std::stri
   return std::to_string(count) + " " + (count == 1 ? one : many);
 }
 
+// A missing store is a missing input: a usage error (exit 2), as everywhere.
 void check_store_folder(const fs::path& store) {
   if (fs::is_directory(store)) return;
   const fs::path aside = aside_folder_of(store);
@@ -25,10 +26,10 @@ void check_store_folder(const fs::path& store) {
   }
   const fs::path partial = partial_folder_of(store);
   if (fs::exists(partial)) {
-    fail_runtime("store " + store.string() + " not found; " + partial.string() +
+    fail_usage("store " + store.string() + " not found; " + partial.string() +
                  " is an unfinished write: build the store again");
   }
-  fail_runtime("store " + store.string() + " not found; check the path");
+  fail_usage("store " + store.string() + " not found; check the path");
 }
 
 template <typename Stored>

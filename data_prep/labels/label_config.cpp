@@ -6,7 +6,9 @@
 #include <cstdlib>
 
 #include "raster/band_settings.hpp"
+#include "raster/processing_baseline.hpp"
 #include "raster/scene_date.hpp"
+#include "util/log.hpp"
 #include "util/nearest_name.hpp"
 
 namespace tinct {
@@ -104,8 +106,8 @@ LabelSourceSettings read_labels(const ConfigNode& node) {
   LabelSourceSettings s;
   const bool vector = node.has("source");
   if (vector == node.has("raster")) {
-    node.fail("", "give either source: (points or polygons: any OGR vector, or a .csv) or raster: "
-                  "(a label raster), not both");
+    node.fail(vector ? "" : "source", "give either source: (points or polygons: any OGR vector, or a .csv) or "
+                                      "raster: (a label raster), not both");
   }
   if (vector) {
     s.source = node.path("source", true);
@@ -116,7 +118,13 @@ LabelSourceSettings read_labels(const ConfigNode& node) {
     node.allow("source");
     read_raster_keys(node, s);
   }
+  s.dates_unknown = node.flag("dates_unknown", false);
+  const bool dated = !s.date_column.empty() || !s.raster_date.empty();
+  if (dated && s.dates_unknown) {
+    node.fail("dates_unknown", "the labels have dates (labels.date or labels.raster_date); remove one of them");
+  }
   if (node.has("classes")) {
+    s.classes_where = node.where("classes");
     s.classes = node.texts("classes");
     if (s.classes.empty()) node.fail("classes", "list at least one class, or remove classes:");
     for (std::size_t i = 0; i < s.classes.size(); ++i) {
@@ -141,13 +149,45 @@ MatchSettings read_match(const ConfigNode& node) {
 
 LabelChipSettings read_chips(const ConfigNode& node) {
   LabelChipSettings s;
-  s.size = static_cast<int>(node.integer("size", 64, 8, 1024));
+  s.size = read_chip_size(node);
   s.min_valid = node.number("min_valid", 0.9, 0.0, 1.0);
   s.centre_valid = node.flag("centre_valid", true);
   s.block_size = node.number("block_size", 5000.0, 1e-6);
   s.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
   node.finish();
   return s;
+}
+
+// Undated labels take the first covering scene in config order: harmless when the
+// scenes lie within the matching window, a silent trap when they span seasons.
+void judge_undated_labels(const ConfigNode& labels, const LabelConfig& config) {
+  const LabelSourceSettings& s = config.labels;
+  if (!s.date_column.empty() || !s.raster_date.empty()) return;
+  const SceneSpec* earliest = &config.scenes.front();
+  const SceneSpec* latest = earliest;
+  for (const SceneSpec& scene : config.scenes) {
+    if (days_since_epoch(scene.date) < days_since_epoch(earliest->date)) earliest = &scene;
+    if (days_since_epoch(scene.date) > days_since_epoch(latest->date)) latest = &scene;
+  }
+  const long first = days_since_epoch(earliest->date), last = days_since_epoch(latest->date);
+  const std::string first_date = earliest->date, last_date = latest->date;
+  const std::string span = "the scenes span " + first_date + " to " + last_date + " (" +
+                           std::to_string(last - first) + " days)";
+  if (s.dates_unknown) {
+    log::info("labels.dates_unknown: each label takes the first covering scene in config order; " + span);
+    return;
+  }
+  const std::string key = s.raster.empty() ? "date" : "raster_date";
+  if (last - first > config.match.max_days) {
+    const std::string give = s.raster.empty() ? "Name the labels' date column (labels.date: COLUMN)"
+                                              : "Give the label raster's date (labels.raster_date: YYYY-MM-DD)";
+    labels.fail(key, "not given, so the labels are undated, but " + span + ", more than match.max_days " +
+                         std::to_string(config.match.max_days) + ": each label would take whichever scene comes "
+                         "first. " + give + ", or set labels.dates_unknown: true if the dates are truly unknown");
+  }
+  log::warning("the labels are undated (labels." + key + " not given): each takes the first covering scene in "
+               "config order; " + span + ", within match.max_days " + std::to_string(config.match.max_days) +
+               " (labels.dates_unknown: true says this is meant)");
 }
 
 }  // namespace
@@ -157,10 +197,6 @@ LabelConfig read_label_config(const ConfigNode& root) {
   config.sensor = read_sensor_reference(root, "sensor");
   config.output = root.path("output", false);
   config.inputs = read_input_bands(root, config.sensor);
-  config.align = read_grid_settings(root.section("grid"), config.sensor, config.resolution);
-  config.labels = read_labels(root.section("labels"));
-  config.match = read_match(root.section("match"));
-  config.chips = read_chips(root.section("chips"));
   const auto items = root.items("scenes");
   if (items.empty()) root.fail("scenes", "required: list at least one scene");
   for (const auto& item : items) {
@@ -173,6 +209,14 @@ LabelConfig read_label_config(const ConfigNode& root) {
     }
     config.scenes.push_back(std::move(scene));
   }
+  settle_processing_baseline(config.sensor, config.scenes, items);
+  config.align = read_grid_settings(root.section("grid"), config.sensor, shared_pixel_size(config.scenes),
+                                    config.resolution);
+  const ConfigNode labels = root.section("labels");
+  config.labels = read_labels(labels);
+  config.match = read_match(root.section("match"));
+  config.chips = read_chips(root.section("chips"));
+  judge_undated_labels(labels, config);
   return config;
 }
 

@@ -3,9 +3,12 @@
 // from, how a label finds its scene, and the chips. Required: sensor, output,
 // inputs, scenes and labels (source, or raster); labels.class for a vector or CSV;
 // labels.x, labels.y and labels.crs for a CSV. Everything else has a default:
-//   grid:   resolution (the profile's reference), refine bilinear, coarsen average
-//   labels: layer (the first), classes (the sorted distinct class values), date (none:
-//           labels are undated), group (the label's id; a polygon's chips share its id),
+//   grid:   resolution (the pixel size all band files share, if they do, else the
+//           profile's reference), refine bilinear, coarsen average
+//   labels: layer (the first), classes (the sorted distinct class values; each listed
+//           class must match a label), date (none: labels are undated; then the scenes
+//           may span at most match.max_days unless dates_unknown: true says the labels'
+//           dates are truly unknown), group (the label's id; a polygon's chips share its id),
 //           id (the feature id, or the CSV line), crs (a vector layer's own; given for a
 //           layer without one, it assigns one), polygon_chips 4,
 //           raster_band 1, raster_rule centre, min_share 0.5, raster_classes (none: the
@@ -38,7 +41,9 @@ struct LabelSourceSettings {
   std::string layer;             // "" = the first layer
   std::string class_column;
   std::vector<std::string> classes;  // the class list in order; empty = sorted distinct values
+  std::string classes_where;         // "label.yaml: labels.classes (line 7)", for messages
   std::string date_column;           // "" = labels are undated
+  bool dates_unknown = false;        // undated on purpose: any scene may give the chip
   std::string group_column;          // "" = group by id
   std::string id_column;             // "" = feature id or CSV line
   std::string x_column, y_column;    // CSV only
@@ -68,7 +73,7 @@ struct LabelChipSettings {
 struct LabelConfig {
   SensorProfile sensor;
   std::vector<SceneSpec> scenes;
-  double resolution = 0;  // metres; the profile's reference resolution by default
+  double resolution = 0;  // metres; see grid: above
   AlignSettings align;
   std::vector<std::string> inputs;
   LabelSourceSettings labels;

@@ -6,6 +6,7 @@
 #include <vector>
 
 #include "chips/store_builder.hpp"
+#include "labels/class_list_check.hpp"
 #include "labels/label_drops.hpp"
 #include "labels/label_matcher.hpp"
 #include "labels/label_raster.hpp"
@@ -22,6 +23,7 @@ namespace {
 LabelSet read_labels(const LabelConfig& config, std::vector<std::string>& classes) {
   const LabelSourceSettings& s = config.labels;
   LabelSet set = s.raster.empty() ? read_label_source(s) : read_label_raster(s, config.chips.size, config.resolution);
+  require_listed_classes(set, s);
   const std::vector<std::string> listed = s.classes.empty() && !s.raster.empty() ? raster_class_names(s) : s.classes;
   classes = select_classes(set, listed);
   sample_polygons(set, s.polygon_chips, config.chips.seed);

@@ -5,6 +5,7 @@
 #include <cstdio>
 
 #include "raster/scene_date.hpp"
+#include "util/log.hpp"
 
 namespace tinct {
 namespace {
@@ -44,6 +45,7 @@ LabelMatcher::LabelMatcher(const LabelConfig& config, const std::string& label_c
   std::vector<std::string> crs_of_transform;
   for (std::size_t i = 0; i < config.scenes.size(); ++i) {
     const Scene& scene = open_scene(i);
+    for (const auto& note : scene.alignment_notes()) log::info("scene " + config.scenes[i].id + ": aligning " + note);
     grids_.push_back(scene.grid());
     scene_days_.push_back(days_since_epoch(config.scenes[i].date));
     std::size_t t = 0;

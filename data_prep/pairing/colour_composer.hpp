@@ -1,7 +1,7 @@
 // Turns three aligned bands (red, green, blue stored values) into 8-bit CIE Lab
 // codes for one scene. The stretch is fitted once per scene from every valid pixel
-// (a streaming percentile histogram, one strip at a time); a Byte colour raster is
-// taken as display-ready sRGB (0..255) and not stretched.
+// (a streaming percentile histogram, one strip at a time); with stretch: none (the
+// default for Byte colour rasters) the values are taken as display-ready sRGB (0..255).
 #pragma once
 
 #include <array>

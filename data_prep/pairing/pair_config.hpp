@@ -1,7 +1,8 @@
 // The settings of `tinct pair`, read from a YAML config (config: pair): the
 // sensor, the scenes, the grid, which bands are inputs, where the colour comes
 // from, the co-registration limits and the chip plan. Every key has a default
-// except sensor, scenes, inputs and output.
+// except sensor, scenes, inputs and output. Scenes may be undated (pretraining
+// matches no labels).
 #pragma once
 
 #include <filesystem>
@@ -20,6 +21,9 @@ namespace tinct {
 struct ColourSettings {
   bool from_raster = false;          // each scene's `colour:` raster instead of three bands
   std::vector<std::string> bands;    // red, green, blue band names (from bands)
+  // stretch: none keeps display-ready 8-bit colour rasters as they are (the default
+  // when every colour raster is Byte); otherwise every scene's colour is stretched.
+  bool stretched = true;
   StretchSettings stretch;
   bool allow_input_overlap = false;  // inputs may include the colour bands (trivial task)
 };

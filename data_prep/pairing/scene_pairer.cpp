@@ -79,7 +79,7 @@ class ScenePairer {
   }
 
   ColourComposer fit_colour() const {
-    if (colour_raster_ && colour_raster_->data_type() == "Byte") return ColourComposer::for_byte_colour();
+    if (!config_.colour.stretched) return ColourComposer::for_byte_colour();  // stretch: none
     std::array<std::string, 3> types;
     if (colour_raster_) {
       types.fill(colour_raster_->data_type());

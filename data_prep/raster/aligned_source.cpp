@@ -104,6 +104,8 @@ AlignedSource::AlignedSource(const fs::path& file, std::vector<int> bands, const
   warped_ = true;
 }
 
+double AlignedSource::source_pixel_size() const { return std::fabs(source_.geotransform()[1]); }
+
 void AlignedSource::read(int col, int row, int width, int height, float* out) const {
   const std::size_t plane = static_cast<std::size_t>(width) * height;
   std::vector<int> view_bands = bands_;

@@ -25,6 +25,7 @@ class AlignedSource {
 
   std::size_t band_count() const { return bands_.size(); }
   bool warped() const { return warped_; }
+  double source_pixel_size() const;  // the file's own pixel width, in its CRS units
   Resampling method() const { return method_; }
   const std::filesystem::path& file() const { return file_; }
   // GDAL type name of the file's first selected band (Byte, UInt16, Float32, ...).

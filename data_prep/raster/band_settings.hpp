@@ -3,6 +3,7 @@
 // `grid:` section (target resolution and resampling methods).
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -19,7 +20,14 @@ void require_profile_bands(const ConfigNode& node, const std::string& key, const
 // The `inputs:` list: at least one band, each in the profile, none twice.
 std::vector<std::string> read_input_bands(const ConfigNode& root, const SensorProfile& profile);
 
-// grid: {resolution (default: the profile's reference), refine, coarsen}; calls finish().
-AlignSettings read_grid_settings(const ConfigNode& node, const SensorProfile& profile, double& resolution);
+// chips.size: pixels, default 64, a multiple of kChipSizeMultiple (16) so every
+// encoder can take the chips; the message says which sizes would do.
+int read_chip_size(const ConfigNode& chips);
+
+// grid: {resolution, refine, coarsen}; calls finish(). The resolution defaults to
+// `scenes_pixel` (the pixel size all band files share, so nothing is resampled that need
+// not be), else to the profile's reference resolution.
+AlignSettings read_grid_settings(const ConfigNode& node, const SensorProfile& profile,
+                                 std::optional<double> scenes_pixel, double& resolution);
 
 }  // namespace tinct

@@ -58,7 +58,8 @@ Raster Raster::open(const fs::path& path) {
   ensure_gdal();
   const bool is_virtual = path.string().rfind("/vsi", 0) == 0;
   if (!is_virtual && !fs::exists(path)) {
-    fail_runtime(path.string() + ": file not found; check the path");
+    // A missing input is a usage error (exit 2) everywhere, like a missing config.
+    fail_usage(path.string() + ": file not found; check the path");
   }
   CPLErrorReset();
   auto* dataset = static_cast<GDALDataset*>(
@@ -180,6 +181,23 @@ void Raster::read_bands(const std::vector<int>& indices, int col, int row, int w
 std::string Raster::metadata(const std::string& key, const std::string& domain) const {
   const char* value = dataset_->GetMetadataItem(key.c_str(), domain.c_str());
   return value ? value : "";
+}
+
+std::vector<std::pair<std::string, std::string>> Raster::metadata_items(int band) const {
+  GDALMajorObject* object = dataset_;
+  if (band > 0) {
+    if (band > band_count()) return {};
+    object = dataset_->GetRasterBand(band);
+  }
+  std::vector<std::pair<std::string, std::string>> items;
+  char** list = object->GetMetadata("");
+  for (int i = 0; list && list[i]; ++i) {
+    char* key = nullptr;
+    const char* value = CPLParseNameValue(list[i], &key);
+    if (key && value) items.emplace_back(key, value);
+    CPLFree(key);
+  }
+  return items;
 }
 
 }  // namespace tinct

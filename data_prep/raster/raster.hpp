@@ -7,6 +7,7 @@
 #include <memory>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 class GDALDataset;
@@ -60,6 +61,8 @@ class Raster {
                   float* out) const;
   // Metadata item of the dataset (domain "" by default), "" when absent.
   std::string metadata(const std::string& key, const std::string& domain = "") const;
+  // Every KEY=VALUE item of the default domain: of the dataset (band 0) or of a band.
+  std::vector<std::pair<std::string, std::string>> metadata_items(int band = 0) const;
 
   GDALDataset* handle() const { return dataset_; }
 

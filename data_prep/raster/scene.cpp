@@ -6,6 +6,7 @@
 #include <map>
 
 #include "util/error.hpp"
+#include "util/number_text.hpp"
 
 namespace fs = std::filesystem;
 
@@ -62,7 +63,9 @@ std::vector<std::string> Scene::data_types() const {
 std::vector<std::string> Scene::alignment_notes() const {
   std::vector<std::string> notes;
   for (const auto& source : sources_) {
-    if (source->warped()) notes.push_back(source->file().string() + " (" + to_string(source->method()) + ")");
+    if (!source->warped()) continue;
+    notes.push_back(source->file().string() + ": pixel size " + short_text(source->source_pixel_size()) + " -> " +
+                    short_text(grid_.pixel_size()) + " (" + to_string(source->method()) + ")");
   }
   return notes;
 }

@@ -24,7 +24,8 @@ class Scene {
   const std::vector<std::string>& bands() const { return bands_; }
   // GDAL type name of each requested band's file.
   std::vector<std::string> data_types() const;
-  // Files that were warped onto the grid, with the method used (for the log).
+  // Files that were warped onto the grid, with their pixel size, the grid's and the
+  // method used (for the log): "b.tif: pixel size 28.5 -> 30 (average)".
   std::vector<std::string> alignment_notes() const;
 
   // out: bands().size() * width * height floats, band after band.

@@ -1,5 +1,9 @@
 #include "raster/scene_spec.hpp"
 
+#include <algorithm>
+#include <cmath>
+#include <set>
+
 #include "raster/band_settings.hpp"
 #include "raster/raster.hpp"
 #include "raster/scene_date.hpp"
@@ -79,11 +83,12 @@ const SceneBand* SceneSpec::band(const std::string& wanted) const {
   return nullptr;
 }
 
-SceneSpec read_scene_spec(const ConfigNode& item, const SensorProfile& profile) {
+SceneSpec read_scene_spec(const ConfigNode& item, const SensorProfile& profile, bool date_required) {
   SceneSpec spec;
   const bool stacked = item.has("path");
   if (stacked == item.has("files")) {
-    item.fail("", "give either path: (one stacked raster) or files: (band name -> file), not both");
+    item.fail(stacked ? "" : "path", "give either path: (one stacked raster) or files: (band name -> file), "
+                                     "not both");
   }
   fs::path first;
   spec.bands = stacked ? read_stack(item, profile, first) : read_files(item, profile, first);
@@ -96,11 +101,13 @@ SceneSpec read_scene_spec(const ConfigNode& item, const SensorProfile& profile) 
     const auto date = parse_date(item.text("date"));
     if (!date) item.fail("date", "expected a date as YYYY-MM-DD");
     spec.date = *date;
-  } else {
-    const auto date = date_from_metadata(Raster::open(first));
-    if (!date) item.fail("date", "required: " + first.string() + " carries no acquisition date; set date: YYYY-MM-DD");
+  } else if (const auto date = date_from_metadata(Raster::open(first))) {
     spec.date = *date;
     item.text("date", spec.date);
+  } else if (date_required) {
+    item.fail("date", "required: " + first.string() + " carries no acquisition date; set date: YYYY-MM-DD");
+  } else {
+    item.allow("date");  // undated: fine for pretraining, which matches no labels
   }
   spec.mask = read_mask(item);
   if (item.has("colour")) {
@@ -110,6 +117,21 @@ SceneSpec read_scene_spec(const ConfigNode& item, const SensorProfile& profile) 
   }
   item.finish();
   return spec;
+}
+
+std::optional<double> shared_pixel_size(const std::vector<SceneSpec>& scenes) {
+  std::optional<double> shared;
+  const auto differs = [](double a, double b) { return std::fabs(a - b) > 1e-9 * std::max(a, b); };
+  for (const SceneSpec& scene : scenes) {
+    std::set<std::filesystem::path> files;
+    for (const SceneBand& band : scene.bands) files.insert(band.file);
+    for (const auto& file : files) {
+      const double size = std::fabs(Raster::open(file).geotransform()[1]);
+      if (shared && differs(*shared, size)) return std::nullopt;
+      shared = size;
+    }
+  }
+  return shared;
 }
 
 }  // namespace tinct

@@ -2,9 +2,12 @@
 
 #include <unistd.h>
 
+#include <algorithm>
 #include <cstdlib>
+#include <set>
 
 #include "util/error.hpp"
+#include "util/nearest_name.hpp"
 
 namespace fs = std::filesystem;
 
@@ -46,6 +49,19 @@ std::vector<SensorBand> read_bands(const ConfigNode& node, const std::vector<Sen
   return bands;
 }
 
+std::vector<LeftOutBand> read_left_out(const ConfigNode& node, const std::vector<LeftOutBand>& base) {
+  if (!node.has("left_out")) {
+    node.allow("left_out");
+    return base;
+  }
+  std::vector<LeftOutBand> bands;
+  for (const ConfigNode& item : node.items("left_out")) {
+    bands.push_back({item.text("name"), item.text("why")});
+    item.finish();
+  }
+  return bands;
+}
+
 fs::path executable_folder() {
   char buffer[4096];
   const ssize_t length = ::readlink("/proc/self/exe", buffer, sizeof(buffer) - 1);
@@ -67,14 +83,27 @@ fs::path find_named_profile(const ConfigNode& parent, const std::string& key, co
     if (fs::exists(candidate)) return candidate;
     searched += (searched.empty() ? "" : ", ") + folder.string();
   }
-  parent.fail(key, "no sensor profile named \"" + name + "\" (looked in " + searched +
-                       "); give a profile name from configs/sensors or a path to a .yaml file");
+  const std::vector<std::string> known = sensor_profile_names();
+  std::string list;
+  for (const auto& profile : known) list += (list.empty() ? "" : ", ") + profile;
+  const std::string near = nearest_name(name, known);
+  parent.fail(key, "no sensor profile named \"" + name + "\"" +
+                       (near.empty() ? "" : "; did you mean \"" + near + "\"?") +
+                       (known.empty() ? " No profiles were found" : " The profiles are " + list) + " (in " +
+                       searched + "); give one of them or a path to a .yaml profile of your own");
 }
 
 }  // namespace
 
 const SensorBand* SensorProfile::band(const std::string& wanted) const {
   for (const auto& b : bands) {
+    if (b.name == wanted) return &b;
+  }
+  return nullptr;
+}
+
+const LeftOutBand* SensorProfile::left_out_band(const std::string& wanted) const {
+  for (const auto& b : left_out) {
     if (b.name == wanted) return &b;
   }
   return nullptr;
@@ -99,9 +128,14 @@ SensorProfile read_sensor_profile(const ConfigNode& node, const SensorProfile& b
   profile.scale = node.number("scale", base.scale);
   if (profile.scale == 0) node.fail("scale", "must not be 0 (reflectance = (stored + offset) * scale)");
   profile.offset = node.number("offset", base.offset);
+  profile.baseline_04_given = node.has("baseline_04");
   profile.baseline_04 = node.flag("baseline_04", base.baseline_04);
   profile.baseline_04_offset = node.number("baseline_04_offset", base.baseline_04_offset);
   profile.bands = read_bands(node, base.bands);
+  profile.left_out = read_left_out(node, base.left_out);
+  for (const auto& left : profile.left_out) {
+    if (profile.band(left.name)) node.fail("left_out", "band \"" + left.name + "\" is listed in bands too");
+  }
   return profile;
 }
 
@@ -109,6 +143,7 @@ SensorProfile load_sensor_profile_file(const fs::path& file) {
   const ConfigNode root = ConfigNode::load(file);
   root.choice("config", {"sensor"});
   SensorProfile profile = read_sensor_profile(root);
+  profile.baseline_04_given = false;  // the profile's own value is a default, not the user's word
   root.finish();
   return profile;
 }
@@ -134,6 +169,17 @@ std::vector<fs::path> sensor_folders() {
   folders.push_back(exe.parent_path() / "configs" / "sensors");
   folders.push_back(exe.parent_path() / "share" / "tinct" / "configs" / "sensors");
   return folders;
+}
+
+std::vector<std::string> sensor_profile_names() {
+  std::set<std::string> names;
+  for (const fs::path& folder : sensor_folders()) {
+    std::error_code ec;
+    for (const auto& entry : fs::directory_iterator(folder, ec)) {
+      if (entry.path().extension() == ".yaml") names.insert(entry.path().stem().string());
+    }
+  }
+  return {names.begin(), names.end()};
 }
 
 }  // namespace tinct

@@ -19,6 +19,13 @@ struct SensorBand {
   double resolution = 0;  // metres
 };
 
+// A band the sensor has but the profile leaves out (a thermal or panchromatic
+// band, a band the product level does not deliver), so errors can say why.
+struct LeftOutBand {
+  std::string name;
+  std::string why;
+};
+
 struct SensorProfile {
   std::string name;
   std::string description;
@@ -32,11 +39,14 @@ struct SensorProfile {
   // `baseline_04` is set, `baseline_04_offset` replaces `offset`.
   bool baseline_04 = false;
   double baseline_04_offset = 0.0;
+  bool baseline_04_given = false;  // set in the config itself, not by the profile file
   std::vector<SensorBand> bands;
+  std::vector<LeftOutBand> left_out;
 
   double effective_offset() const { return baseline_04 ? baseline_04_offset : offset; }
   double reflectance(double stored) const { return (stored + effective_offset()) * scale; }
   const SensorBand* band(const std::string& name) const;
+  const LeftOutBand* left_out_band(const std::string& name) const;
   std::vector<std::string> band_names() const;
 };
 
@@ -54,5 +64,8 @@ SensorProfile read_sensor_reference(const ConfigNode& parent, const std::string&
 // Where profile names are looked up, in order: $TINCT_CONFIG_DIR/sensors, then
 // configs/sensors beside the executable's folder, then share/tinct/configs/sensors.
 std::vector<std::filesystem::path> sensor_folders();
+
+// The names of the profiles found in sensor_folders(), sorted, each once.
+std::vector<std::string> sensor_profile_names();
 
 }  // namespace tinct

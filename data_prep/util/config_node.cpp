@@ -7,6 +7,7 @@
 
 #include "util/error.hpp"
 #include "util/nearest_name.hpp"
+#include "util/number_text.hpp"
 #include "util/sha256.hpp"
 
 namespace fs = std::filesystem;
@@ -122,7 +123,24 @@ std::string ConfigNode::where(const std::string& key) const {
   return text;
 }
 
+void ConfigNode::blame_misspelling(const std::string& key) const {
+  if (node_.IsMap()) {
+    for (const auto& entry : node_) {
+      const std::string typed = entry.first.Scalar();
+      if (read_keys_->count(typed) || !likely_misspelling(typed, key)) continue;
+      fail_usage(context_->name + ": " + child_path(typed) + ": unknown key; did you mean \"" + key + "\"? (line " +
+                 std::to_string(entry.first.Mark().line + 1) + ")");
+    }
+  }
+  if (!given_ && parent_) parent_->blame_misspelling(name_);
+}
+
 void ConfigNode::fail(const std::string& key, const std::string& problem) const {
+  if (key.empty()) {
+    if (!given_ && parent_) parent_->blame_misspelling(name_);
+  } else if (lookup(key).IsNull()) {  // absent (lookup gives a null node) or left empty
+    blame_misspelling(key);
+  }
   const YAML::Node value = key.empty() ? node_ : lookup(key);
   const std::string path = key.empty() ? key_path_ : child_path(key);
   std::string text = context_->name + ": " + (path.empty() ? "(top level)" : path) + ": " + problem;
@@ -161,10 +179,15 @@ ConfigNode ConfigNode::section(const std::string& key) const {
   if (value.IsDefined() && !value.IsNull() && !value.IsMap()) {
     fail(key, "expected a mapping of keys, " + got(value));
   }
-  if (!value.IsDefined() || value.IsNull()) value = YAML::Node(YAML::NodeType::Map);
+  const bool given = value.IsDefined() && !value.IsNull();
+  if (!given) value = YAML::Node(YAML::NodeType::Map);
   YAML::Node resolved = resolved_;
   resolved[key] = YAML::Node(YAML::NodeType::Map);
-  return ConfigNode(value, resolved[key], context_, child_path(key));
+  ConfigNode child(value, resolved[key], context_, child_path(key));
+  child.parent_ = std::make_shared<const ConfigNode>(*this);
+  child.name_ = key;
+  child.given_ = given;
+  return child;
 }
 
 std::vector<ConfigNode> ConfigNode::items(const std::string& key) const {
@@ -257,7 +280,7 @@ double ConfigNode::number(const std::string& key, std::optional<double> fallback
     fail(key, "expected " + describe_number_range(min, max) + ", " + got(value));
   }
   YAML::Node resolved = resolved_;
-  resolved[key] = result;
+  resolved[key] = exact_text(result);  // 0.9, not 0.90000000000000002
   return result;
 }
 
@@ -326,7 +349,8 @@ std::vector<double> ConfigNode::numbers(const std::string& key,
     fail(key, "expected a list of numbers, " + got(value));
   }
   YAML::Node resolved = resolved_;
-  resolved[key] = result;
+  resolved[key] = YAML::Node(YAML::NodeType::Sequence);
+  for (double number : result) resolved[key].push_back(exact_text(number));
   return result;
 }
 

@@ -1,7 +1,9 @@
 // Typed reading of one YAML config with the context every error needs: file,
 // key path and line. Each value read (default or not) is recorded into a resolved
 // tree, so a run can save its config with every default filled in. Keys that were
-// never read are unknown keys: finish() reports them with the nearest valid key.
+// never read are unknown keys: finish() reports them with the nearest valid key, and
+// an error about a missing key first blames an unread key that looks like a slip for
+// it ("snesor: unknown key; did you mean \"sensor\"?" rather than "sensor: required").
 #pragma once
 
 #include <yaml-cpp/yaml.h>
@@ -59,6 +61,8 @@ class ConfigNode {
   // Fails on any key of this mapping that no getter read.
   void finish() const;
 
+  // Fails at `key` (or at this node itself for ""); when `key` is absent, an unread
+  // key here or in the parents that looks like a slip for it is reported instead.
   [[noreturn]] void fail(const std::string& key, const std::string& problem) const;
   std::string where(const std::string& key) const;  // "file: a.b.key (line N)"
 
@@ -76,6 +80,9 @@ class ConfigNode {
   ConfigNode(YAML::Node node, YAML::Node resolved, std::shared_ptr<const Context> context,
              std::string key_path);
   YAML::Node lookup(const std::string& key) const;
+  // Fails on an unread key of this mapping that looks like a slip for `key`; then asks
+  // the parent about this section's own name when the section was not given.
+  void blame_misspelling(const std::string& key) const;
   std::string child_path(const std::string& key) const;
   std::string got(const YAML::Node& value) const;
 
@@ -84,6 +91,9 @@ class ConfigNode {
   std::shared_ptr<const Context> context_;
   std::string key_path_;
   std::shared_ptr<std::set<std::string>> read_keys_;
+  std::shared_ptr<const ConfigNode> parent_;  // for sections: where to look for a misspelt name
+  std::string name_;                          // this section's key in the parent
+  bool given_ = true;                         // false: an absent section (all defaults)
 };
 
 // The resolved tree as YAML text, and its SHA-256 (the config hash of a run).

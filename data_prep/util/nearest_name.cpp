@@ -6,19 +6,22 @@
 namespace tinct {
 
 std::size_t edit_distance(const std::string& a, const std::string& b) {
-  std::vector<std::size_t> row(b.size() + 1);
-  std::iota(row.begin(), row.end(), 0);
+  // Three rows of the dynamic programme: two back for the swap.
+  std::vector<std::size_t> before(b.size() + 1), previous(b.size() + 1), row(b.size() + 1);
+  std::iota(previous.begin(), previous.end(), 0);
   for (std::size_t i = 1; i <= a.size(); ++i) {
-    std::size_t diagonal = row[0];
     row[0] = i;
     for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t above = row[j];
-      const std::size_t substitution = diagonal + (a[i - 1] == b[j - 1] ? 0 : 1);
-      row[j] = std::min({above + 1, row[j - 1] + 1, substitution});
-      diagonal = above;
+      const std::size_t substitution = previous[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
+      row[j] = std::min({previous[j] + 1, row[j - 1] + 1, substitution});
+      if (i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
+        row[j] = std::min(row[j], before[j - 2] + 1);
+      }
     }
+    before.swap(previous);
+    previous.swap(row);
   }
-  return row[b.size()];
+  return previous[b.size()];
 }
 
 std::string nearest_name(const std::string& name, const std::vector<std::string>& candidates) {
@@ -32,6 +35,12 @@ std::string nearest_name(const std::string& name, const std::vector<std::string>
     }
   }
   return best;
+}
+
+bool likely_misspelling(const std::string& typed, const std::string& meant) {
+  if (typed == meant || typed.size() < 3 || meant.size() < 3) return false;
+  const std::size_t allowed = std::max(typed.size(), meant.size()) >= 8 ? 2 : 1;
+  return edit_distance(typed, meant) <= allowed;
 }
 
 }  // namespace tinct

@@ -40,7 +40,7 @@ expect 2 "" -- "$tinct"
 expect 2 "" -- "$tinct" no-such-command
 expect 2 "" -- "$tinct" survey
 expect 2 "" -- "$tinct" --threads -3 survey "$work/ok.tif"
-expect 1 "file not found" -- "$tinct" survey "$work/missing.tif"
+expect 2 "file not found" -- "$tinct" survey "$work/missing.tif"
 expect 1 "not a readable raster" -- "$tinct" survey "$work/notes.txt"
 expect 2 "reference_resolution: expected a number" -- "$tinct" check "$work/bad.yaml"
 expect 2 "config file not found" -- "$tinct" check "$work/none.yaml"

@@ -108,7 +108,7 @@ with tempfile.TemporaryDirectory() as work:
            "labels.source: file not found")
 
     # Every label dropped: no store, exit 1, the counts per reason, and the drop report.
-    write_csv(work, "id,e,n,habitat,visited\n1,400000,5299595,breeding,2023-06-02\n"
+    write_csv(work, "id,e,n,habitat,visited\n1,400000,5299595,dry,2023-06-02\n"
                     "2,500405,5299595,breeding,2024-06-02\n3,500405,5299595,other,2023-06-02\n")
     labels = '{source: sites.csv, class: habitat, classes: [breeding, dry], date: visited, x: e, y: n, crs: "EPSG:32632"}'
     run = run_label(work, config_text(labels, output="none.labels"))

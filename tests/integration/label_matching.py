@@ -3,7 +3,7 @@ date within max_days (ties: the earlier scene in the config), falls back to the
 next scene when its pixel is masked there, and every label that gives no chip
 is in the drop report with its reason: outside all scenes, masked (mask or
 nodata), too few valid pixels, no scene within max_days, class not in the list.
-Undated labels take the first covering valid scene. Stored chips equal GDAL's
+Undated labels (labels.dates_unknown: true) take the first covering valid scene. Stored chips equal GDAL's
 read of the chosen scene; chips.csv carries label, group and source id."""
 import csv
 import os
@@ -66,7 +66,7 @@ def map_xy(col, row):
 def config_text(dated, output):
     scenes = "\n".join(f"  - {{path: {name}.tif, bands: [red, nir], date: {date}, "
                        f"mask: {{path: {name}-mask.tif, drop: [9]}}}}" for name, date in SCENES)
-    date_key = ", date: visited" if dated else ""
+    date_key = ", date: visited" if dated else ", dates_unknown: true"  # scenes span more than max_days
     return f"""config: label
 sensor: generic
 output: {output}
@@ -149,7 +149,7 @@ with tempfile.TemporaryDirectory() as work:
     checks.check("class unknown: 0 kept, 1 dropped" in run.stderr, "per-class summary: unlisted class")
     check_chips(store, work, "dated")
 
-    # Without a date column every label takes the first covering valid scene.
+    # Without a date column (declared unknown) every label takes the first covering valid scene.
     run = run_label(work, config_text(False, "undated.labels"), "undated.yaml")
     checks.check(run.returncode == 0, f"undated run: exit {run.returncode}\n{run.stderr}")
     store = Store(os.path.join(work, "undated.labels"))

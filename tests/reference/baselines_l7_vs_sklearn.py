@@ -6,9 +6,10 @@ GDAL's pixels: water where NDWI = (green - NIR) / (green + NIR) > 0 (McFeeters 1
 vegetation where NDVI = (NIR - red) / (NIR + red) > 0.3 (Rouse et al. 1974; 0.3 a
 common-practice threshold), other land otherwise; the classifiers see the infrared bands
 B4, B5 and B7 only (not the visible bands of the rules). `tinct label` builds the label store
-(chips of 8 px, spatial blocks of 2000 m). Splits: the blocks dealt into 3 folds (one is the
-test side), budgets of 5 and 15 training chips per class drawn from the other folds, 2 draws
-each, and all the other folds' chips (imbalanced classes): 15 splits.
+(chips of 16 px, the smallest size label takes; spatial blocks of 2000 m). Splits: the blocks
+dealt into 3 folds (one is the test side), budgets of 5 and 15 training chips per class drawn
+from the other folds, 2 draws each, and all the other folds' chips (imbalanced classes): 15
+splits.
 
 Compared:
 1. Features: baseline_tool's label-pixel and 3 x 3 mean features of every chip equal GDAL's
@@ -46,7 +47,7 @@ TINCT = os.environ["TINCT"]
 TOOL = sys.argv[1]
 L7 = os.path.join(os.environ["TINCT_TEST_DATA"], "L7_ETMs.tif")
 NAMES = ["water", "vegetation", "other"]
-CHIP = 8
+CHIP = 16
 checks = Checks()
 
 ds = gdal.Open(L7)

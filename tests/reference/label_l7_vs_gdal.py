@@ -6,10 +6,10 @@ Checked against outside references:
 - (-34.9, -8) lies in pixel col 63, row 194 and (-34.85, -7.96) in col 256, row 38
   (REFERENCES.md section 7, PROJ 9.1.1 cs2cs), with DN 67 130 110 and 61 131 111 in
   ETM+ bands 4, 5, 7 there (section 7, GDAL 3.6.2);
-- every stored 8 x 8 chip equals GDAL's own windowed read of the window whose
-  pixel (4, 4) is the label's pixel, for these and for seeded random points placed
+- every stored 16 x 16 chip equals GDAL's own windowed read of the window whose
+  pixel (8, 8) is the label's pixel, for these and for seeded random points placed
   with GDAL's osr (its PROJ);
-- chips.csv centres equal the geotransform applied to col/row + 4 (section 6);
+- chips.csv centres equal the geotransform applied to col/row + 8 (section 6);
 - the manifest's CRS (and its scene's) is GDAL's CRS of the file (osr IsSame), and
   its pixel_size GDAL's pixel size;
 - a point too close to the edge for a full chip is in the drop report."""
@@ -28,7 +28,7 @@ from synthetic import Checks  # noqa: E402
 
 TINCT = os.environ["TINCT"]
 L7 = os.path.join(os.environ["TINCT_TEST_DATA"], "L7_ETMs.tif")
-SIZE = 8
+SIZE = 16
 checks = Checks()
 
 ds = gdal.Open(L7)
@@ -59,7 +59,7 @@ for k in range(6):
     lon, lat = lonlat_of_pixel(col, row, dx, dy)
     points.append((f"random-{k}", lon, lat, ["water", "urban"][k % 2], (col, row)))
 lon, lat = lonlat_of_pixel(2, 100)
-points.append(("edge", lon, lat, "water", None))  # pixel col 2: no full 8-pixel chip
+points.append(("edge", lon, lat, "water", None))  # pixel col 2: no full 16-pixel chip
 
 with tempfile.TemporaryDirectory() as work:
     with open(os.path.join(work, "sites.csv"), "w") as f:
@@ -103,7 +103,7 @@ scenes:
         i = by_id[pid]
         chip = store.chips[i]
         checks.check((int(chip["col"]), int(chip["row"])) == (col - SIZE // 2, row - SIZE // 2),
-                     f"{pid}: chip at {chip['col']},{chip['row']}, expected {col - 4},{row - 4}")
+                     f"{pid}: chip at {chip['col']},{chip['row']}, expected {col - SIZE // 2},{row - SIZE // 2}")
         for k, b in enumerate(file_bands):
             window = ds.GetRasterBand(b).ReadAsArray(col - SIZE // 2, row - SIZE // 2, SIZE, SIZE)
             checks.check(np.array_equal(store.bands[i, k], window), f"{pid}: band {store.band_names[k]} "

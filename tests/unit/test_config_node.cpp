@@ -95,3 +95,33 @@ TEST_CASE("YAML syntax errors name the file and line") {
   CHECK_THAT(message, Contains("bad.yaml: line"));
   CHECK_THAT(message, Contains("not valid YAML"));
 }
+
+TEST_CASE("a missing key blames an unread key that looks like a slip for it") {
+  const ConfigNode root = ConfigNode::from_text("config: pair\nsnesor: generic\ncolur: {bands: [r, g, b]}\n"
+                                                "extra: 1\n", "p.yaml", ".");
+  CHECK_THAT(usage_error_of([&] { root.text("sensor"); }),
+             Contains("p.yaml: snesor: unknown key; did you mean \"sensor\"? (line 2)"));
+  // A required key inside an absent section: the section's misspelt name is blamed.
+  CHECK_THAT(usage_error_of([&] { root.section("colour").texts("bands"); }),
+             Contains("p.yaml: colur: unknown key; did you mean \"colour\"? (line 3)"));
+  // Nothing alike: the key is simply required.
+  CHECK_THAT(usage_error_of([&] { root.text("output"); }), Contains("p.yaml: output: required"));
+  // A key already read is never blamed, however alike.
+  const ConfigNode read = ConfigNode::from_text("input: a\n", "q.yaml", ".");
+  read.text("input");
+  CHECK_THAT(usage_error_of([&] { read.text("inputs"); }), Contains("q.yaml: inputs: required"));
+}
+
+TEST_CASE("numbers are resolved as written, not as their binary expansion") {
+  const ConfigNode root = ConfigNode::from_text("a: 0.9\nb: 0.30\nc: [0.1, 0.2]\n", "p.yaml", ".");
+  root.number("a");
+  root.number("b");
+  root.numbers("c");
+  root.number("d", 0.7);
+  const std::string text = tinct::resolved_text(root);
+  CHECK_THAT(text, Contains("a: 0.9\n"));
+  CHECK_THAT(text, Contains("b: 0.3\n"));
+  CHECK_THAT(text, Contains("- 0.1\n"));
+  CHECK_THAT(text, Contains("d: 0.7\n"));
+  CHECK_THAT(text, !Contains("0000"));
+}

@@ -62,15 +62,17 @@ double error(const tinct::ShiftEstimate& shift, double dx, double dy) {
 
 }  // namespace
 
-TEST_CASE("shift: a known sub-pixel shift of (1.3, -0.7) px is measured within 0.15 px") {
+// Within 0.05 px: the shift is made by cubic resampling (OpenCV places positions on a
+// 1/32 px grid), whose phase errors at high frequencies the pass-band weight keeps out.
+TEST_CASE("shift: a known sub-pixel shift of (1.3, -0.7) px is measured within 0.05 px") {
   for (unsigned seed : {1u, 7u, 42u}) {
     const cv::Mat source = textured_source(seed);
     const auto shift = tinct::estimate_shift(crop(source), shifted_crop(source, 1.3, -0.7), 128, 9);
     INFO("seed " << seed << ": dx " << shift.dx << " dy " << shift.dy << " error "
                  << error(shift, 1.3, -0.7));
     CHECK(shift.windows_used == 9);
-    CHECK(std::fabs(shift.dx - 1.3) < 0.15);
-    CHECK(std::fabs(shift.dy + 0.7) < 0.15);
+    CHECK(std::fabs(shift.dx - 1.3) < 0.05);
+    CHECK(std::fabs(shift.dy + 0.7) < 0.05);
   }
 }
 

@@ -89,7 +89,7 @@ TEST_CASE("a scene reads aligned bands with NaN for nodata and masked pixels") {
   CHECK(std::isnan(swir_plane[7]));                // masks apply to every band
   CHECK(swir_plane[0] == 500);                     // 20 m pixel (0,0) covers 10 m cols 0-1
   CHECK(swir_plane[3 * 8 + 2] == 601);             // row 3 -> 20 m row 1, col 2 -> 20 m col 1
-  CHECK_THAT(scene.alignment_notes().front(), Contains("swir.tif (near)"));
+  CHECK_THAT(scene.alignment_notes().front(), Contains("swir.tif: pixel size 20 -> 10 (near)"));
 }
 
 TEST_CASE("dates are parsed from ISO, TIFF and timestamp forms and counted in days") {

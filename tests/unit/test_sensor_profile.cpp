@@ -67,6 +67,41 @@ TEST_CASE("the Landsat 7 ETM+ profile spans the handbook band ranges") {
   CHECK_FALSE(profile.nodata.has_value());
 }
 
+TEST_CASE("the Landsat 8/9 OLI Collection 2 Level-2 profile follows the product guide") {
+  // USGS Landsat 8-9 Collection 2 Level-2 Science Product Guide, from memory, as listed in
+  // REFERENCES.md section 9: centres in nm, 30 m, reflectance = DN x 0.0000275 - 0.2.
+  const PublishedBand kGuide[] = {{"B1", 443, 20, 30},  {"B2", 482, 65, 30},  {"B3", 561, 75, 30},
+                                  {"B4", 655, 50, 30},  {"B5", 865, 40, 30},  {"B6", 1609, 100, 30},
+                                  {"B7", 2201, 200, 30}};
+  const auto profile = tinct::load_sensor_profile_file(kSensors / "landsat8-9-oli-l2.yaml");
+  REQUIRE(profile.bands.size() == 7);
+  for (std::size_t i = 0; i < 7; ++i) {
+    CHECK(profile.bands[i].name == kGuide[i].name);
+    CHECK(profile.bands[i].centre_nm == kGuide[i].centre_nm);
+    CHECK(profile.bands[i].resolution == kGuide[i].resolution);
+  }
+  // Worked (arithmetic on the guide's rule): DN 10000 -> 0.075, 7273 -> 0.0000075, 43636 -> 0.99999.
+  CHECK(profile.reflectance(10000) == Approx(0.075).margin(1e-12));
+  CHECK(profile.reflectance(7273) == Approx(0.0000075).margin(1e-12));
+  CHECK(profile.reflectance(43636) == Approx(0.99999).margin(1e-12));
+  CHECK(profile.reflectance(0) == Approx(-0.2).margin(1e-12));
+  CHECK(profile.nodata == 0.0);
+  REQUIRE(profile.left_out_band("B10") != nullptr);
+  CHECK_THAT(profile.left_out_band("B10")->why, Contains("surface temperature"));
+  CHECK(profile.band("B10") == nullptr);
+}
+
+TEST_CASE("profiles say which of the sensor's bands they leave out") {
+  const auto etm = tinct::load_sensor_profile_file(kSensors / "landsat7-etm.yaml");
+  REQUIRE(etm.left_out_band("B6") != nullptr);
+  CHECK_THAT(etm.left_out_band("B6")->why, Contains("thermal"));
+  CHECK(etm.left_out_band("B8") != nullptr);
+  CHECK(etm.left_out_band("B5") == nullptr);
+  const auto s2 = tinct::load_sensor_profile_file(kSensors / "sentinel2-l2a.yaml");
+  REQUIRE(s2.left_out_band("B10") != nullptr);
+  CHECK_THAT(s2.left_out_band("B10")->why, Contains("cirrus"));
+}
+
 TEST_CASE("the generic template is a valid profile") {
   const auto profile = tinct::load_sensor_profile_file(kSensors / "generic.yaml");
   CHECK(profile.band_names() == std::vector<std::string>{"blue", "green", "red", "nir"});

@@ -1,4 +1,5 @@
 // tinct assess RUN --on STORE: a finetune run's model applied to any label store.
+#include "chips/store_list.hpp"
 #include "cli/commands.hpp"
 #include "finetune/assess_job.hpp"
 
@@ -15,7 +16,10 @@ CommandRun setup_assess(CLI::App& command, const GlobalOptions&) {
   command.add_option("run", options->run, "A finetune run folder (it holds model.pt)")->required();
   command.add_option("--on", options->store, "Label store to assess on")->required();
   command.add_option("--out", options->out, "Folder for the metric files (default: RUN/assess-STORE)");
-  return [options] { run_assess(options->run, options->store, options->out); };
+  return [options] {
+    require_store_kind(options->store, StoreKind::labels, "--on");
+    run_assess(options->run, options->store, options->out);
+  };
 }
 
 }  // namespace tinct

@@ -1,5 +1,7 @@
 // tinct's entry point: global options, the table of subcommands, and the one
 // place where errors become messages and exit codes (0 ok, 1 runtime, 2 usage).
+#include <algorithm>
+#include <cctype>
 #include <iostream>
 #include <string>
 #include <vector>
@@ -9,6 +11,7 @@
 #include "runs/torch_runtime.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
+#include "util/nearest_name.hpp"
 #include "util/version_info.hpp"
 
 namespace {
@@ -34,6 +37,38 @@ std::string version_text() {
          tinct::gdal_version() + "\nOpenCV " + tinct::opencv_version();
 }
 
+// The first word that is neither a global option nor its value: the command the user
+// meant. CLI11 alone would only say "A subcommand is required" for a misspelt one.
+std::string command_word(int argc, char** argv) {
+  for (int i = 1; i < argc; ++i) {
+    const std::string word = argv[i];
+    if (word == "--threads") {
+      ++i;
+      continue;
+    }
+    if (word.rfind("-", 0) != 0) return word;
+  }
+  return "";
+}
+
+// "" when `word` is a command (or absent); else what to tell the user.
+std::string unknown_command_message(const std::string& word) {
+  if (word.empty()) return "";
+  std::vector<std::string> names;
+  for (const auto& entry : kCommands) {
+    if (word == entry.name) return "";
+    names.push_back(entry.name);
+  }
+  std::string lower = word;
+  for (char& c : lower) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
+  const auto same_but_case = std::find(names.begin(), names.end(), lower);
+  const std::string near = same_but_case != names.end() ? lower : tinct::nearest_name(word, names);
+  std::string list;
+  for (const auto& name : names) list += (list.empty() ? "" : ", ") + name;
+  return "unknown command \"" + word + "\"" + (near.empty() ? "" : "; did you mean \"" + near + "\"?") +
+         " The commands are " + list + " (tinct --help describes them)";
+}
+
 int parse_error_exit(const CLI::App& app, const CLI::ParseError& error) {
   const int code = app.exit(error);  // prints help, version or the usage error
   return code == 0 ? 0 : 2;
@@ -42,8 +77,10 @@ int parse_error_exit(const CLI::App& app, const CLI::ParseError& error) {
 }  // namespace
 
 int main(int argc, char** argv) {
+  // Named explicitly so usage lines say "tinct", not the path the binary was run by.
   CLI::App app{"tinct: self-supervised band-to-colour pretraining and habitat mapping from "
-               "multispectral imagery, on the CPU"};
+               "multispectral imagery, on the CPU",
+               "tinct"};
   app.set_version_flag("--version", version_text());
   app.require_subcommand(1);
   tinct::GlobalOptions global;
@@ -54,9 +91,15 @@ int main(int argc, char** argv) {
   std::vector<std::pair<CLI::App*, tinct::CommandRun>> commands;
   for (const auto& entry : kCommands) {
     CLI::App* command = app.add_subcommand(entry.name, entry.summary);
+    command->fallthrough();  // global options (--threads, --quiet) also after the command
     commands.emplace_back(command, entry.setup(*command, global));
   }
 
+  const std::string unknown = unknown_command_message(command_word(argc, argv));
+  if (!unknown.empty()) {
+    tinct::log::error(unknown);
+    return 2;
+  }
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& error) {

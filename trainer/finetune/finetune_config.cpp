@@ -1,5 +1,6 @@
 #include "finetune/finetune_config.hpp"
 
+#include "batches/store_fit.hpp"
 #include "chips/store_list.hpp"
 #include "util/error.hpp"
 
@@ -56,6 +57,10 @@ SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
   s.block_size = node.number("block_size", 2000.0, 1e-6);
   s.folds = static_cast<int>(node.integer("folds", 5, 2, 100));
   s.fold = static_cast<int>(node.integer("fold", 0, 0, 99));
+  if (s.fold >= s.folds) {
+    node.fail("fold", "is " + std::to_string(s.fold) + ", but folds are numbered 0 to split.folds - 1 (" +
+                          std::to_string(s.folds - 1) + ")");
+  }
   s.buffer = node.number("buffer", 0.0, 0.0);
   s.validation_fraction = node.number("validation_fraction", 0.2, 0.05, 0.5);
   s.seed = seed;
@@ -70,7 +75,11 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   int bands = 0;
   config.stores = read_store_list(root, StoreKind::labels, bands);
   config.output = root.path("output", false);
-  config.init = read_init(root.section("init"), bands);
+  const ConfigNode init = root.section("init");
+  config.init = read_init(init, bands);
+  require_no_conflicts(config.init.pretrain_run.empty()
+                           ? store_conflicts(root, config.stores, config.init.model.encoder)
+                           : store_conflicts_with_run(root, config.stores, config.init.pretrain_run, init, "run"));
   const ConfigNode head = root.section("head");
   config.dropout = head.number("dropout", 0.2, 0.0, 0.95);
   config.hidden = static_cast<int>(head.integer("hidden", 0, 0, 8192));

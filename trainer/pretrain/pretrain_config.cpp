@@ -1,5 +1,6 @@
 #include "pretrain/pretrain_config.hpp"
 
+#include "batches/store_fit.hpp"
 #include "chips/store_list.hpp"
 #include "util/error.hpp"
 
@@ -81,6 +82,7 @@ PretrainConfig read_pretrain_config(const ConfigNode& root) {
     config.model.decoder.output = "ab_bins";
     config.model.decoder.ab_bins_per_axis = config.loss.ab_bins_per_axis;
   }
+  require_no_conflicts(store_conflicts(root, config.stores, config.model.encoder));
   config.train = read_train(root.section("train"));
   config.validation = read_validation(root.section("validation"));
   config.checkpoints = read_checkpoints(root.section("checkpoints"));

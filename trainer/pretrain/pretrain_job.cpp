@@ -96,18 +96,18 @@ void save_encoder_artifact(Training& t) {
                {model_spec_yaml(t.config.model), t.chips.normalisation(), t.chips.chip_size()});
 }
 
-void write_preview(Training& t, const ColourObjective& objective, std::int64_t done) {
+void write_preview(Training& t, const ColourObjective& objective, const PreviewCaption& caption) {
   if (t.config.validation.previews == 0) return;
-  const auto chips = first(t.split.validation, static_cast<std::size_t>(t.config.validation.previews));
+  const auto chips = preview_chips(t.chips, t.split.validation, t.config.validation.previews);
   const Batch batch = assemble_batch(t.chips, chips, std::vector<int>(chips.size(), 0));
   torch::InferenceMode inference;
   t.model->eval();
   const torch::Tensor predicted = objective.predicted_lab(t.model->forward(batch.bands));
   t.model->train();
   char name[64];
-  std::snprintf(name, sizeof(name), "step-%08lld.png", static_cast<long long>(done));
+  std::snprintf(name, sizeof(name), "step-%08lld.png", static_cast<long long>(caption.step));
   std::filesystem::create_directories(t.run.file("previews"));
-  write_colour_preview(t.run.file("previews") / name, batch.colour, predicted);
+  write_colour_preview(t.run.file("previews") / name, batch.colour, predicted, caption);
 }
 
 std::string format(const char* pattern, double value) {
@@ -167,7 +167,7 @@ void train(Training& t, const PretrainOptions& options) {
       row[7] = metric_text(v.baseline_delta_e);
       log::info("step " + std::to_string(done) + ": validation loss " + format("%.4f", v.loss) + ", delta E " +
                 format("%.2f", v.delta_e) + " (mean-colour baseline " + format("%.2f", v.baseline_delta_e) + ")");
-      write_preview(t, objective, done);
+      write_preview(t, objective, {done, v.delta_e, v.baseline_delta_e});
     }
     metrics.add(row);
     if (validate || due(done, c.checkpoints.every, t.total) || done == stop) {
