@@ -185,6 +185,7 @@ class Ground:
         over = total > 1
         for name in EDGE_KINDS:
             getattr(self, name)[over] /= total[over]
+        del p.distances, p.edge_ids  # only needed here (about 300 MB at the demo's size)
 
     def _parcel_attributes(self, rng):
         """Crops and their dates (day of year) per parcel."""

@@ -17,7 +17,7 @@ def srs(epsg):
 
 def write(path, bands, geotransform, epsg, dtype, nodata=None, names=None, metadata=None, rgb=False):
     height, width = bands[0].shape
-    options = ["TILED=YES", "COMPRESS=DEFLATE", "PREDICTOR=2"] + (["PHOTOMETRIC=RGB"] if rgb else [])
+    options = ["TILED=YES", "COMPRESS=DEFLATE", "PREDICTOR=2", "ZLEVEL=1"] + (["PHOTOMETRIC=RGB"] if rgb else [])
     ds = gdal.GetDriverByName("GTiff").Create(str(path), width, height, len(bands), TYPES[dtype], options)
     ds.SetGeoTransform(geotransform)
     ds.SetProjection(srs(epsg).ExportToWkt())
