@@ -165,7 +165,7 @@ with tempfile.TemporaryDirectory() as work:
     ortho_store = Store(os.path.join(work, "demo-out", "aldery-ortho.pairs"))
     notes = ortho_store.manifest["scenes"][0]["notes"]
     dx, dy = float(notes["colour_shift_dx_px"]), float(notes["colour_shift_dy_px"])
-    true_dx, true_dy = summary["ortho"]["offset_px"]
+    true_dx, true_dy = summary["ortho"]["shift_px_right_down"]
     print(f"orthophoto shift: measured ({dx:.3f}, {dy:.3f}) px, generated ({true_dx:.3f}, {true_dy:.3f}) px")
     # The small district gives one correlation window, partly outside the orthophoto: 0.25 px
     # (on the demo's district five windows measure 0.47, 0.50).

@@ -80,8 +80,9 @@ def build(out, size, seed, log=print):
             rgb = reflectance[[spectra.BANDS.index(b) for b in ("B04", "B03", "B02")]].copy()
             summary["ortho"] = ortho.write(os.path.join(partial, f"ortho-{acquisition.date}.tif"), rgb, rng,
                                            acquisition.date)
-            summary["ortho"].update(epsg=scenario.ORTHO_EPSG, offset_m=list(scenario.ORTHO_OFFSET),
-                                    offset_px=[scenario.ORTHO_OFFSET[0] / 10, -scenario.ORTHO_OFFSET[1] / 10])
+            # The shift as tinct pair reports it: pixels of the 10 m grid, right and down.
+            summary["ortho"].update(epsg=scenario.ORTHO_EPSG, offset_m_east_north=list(scenario.ORTHO_OFFSET),
+                                    shift_px_right_down=[scenario.ORTHO_OFFSET[0] / 10, -scenario.ORTHO_OFFSET[1] / 10])
         breeding = block_mean(habitat_rule.breeding_map(pond, veg).astype(np.float32), 2) >= 0.5
         rasters.write(os.path.join(partial, "truth", f"breeding-{acquisition.date}.tif"), [breeding.astype(np.uint8)],
                       rasters.scene_geotransform(10), scenario.EPSG, "uint8", names=["breeding"],

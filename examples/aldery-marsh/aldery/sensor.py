@@ -1,9 +1,8 @@
 """What a Sentinel-2 L2A product would make of the invented ground on one date:
-residual haze, clouds with their shadows cast away from the sun, thin cirrus, the
-edge of the swath (no data), each band averaged to its native 10, 20 or 60 m
-pixels (so edges become mixed pixels), sensor noise, quantisation to DN =
-reflectance x 10000 + 1000 (processing baseline 04.00 and later), and a 20 m
-scene-classification band with the L2A codes (REFERENCES.md section 5)."""
+haze, clouds and their shadows, thin cirrus, the swath edge, each band averaged to
+its native 10, 20 or 60 m pixels, noise, DN = reflectance x 10000 + 1000 (processing
+baseline 04.00 and later), and a 20 m scene classification with the codes of ESA's
+Level-2A product (0 no data ... 11 snow; from memory)."""
 import numpy as np
 
 from . import scenario, spectra

@@ -1,22 +1,21 @@
 """Surface reflectance of the invented ground's components at the centres of the
 12 Sentinel-2 L2A bands, and what the atmosphere and the sensor add. The numbers
-are invented but shaped by well-known facts, each marked with its source:
-
-- Green vegetation absorbs blue and red (chlorophyll), peaks a little in green,
-  rises steeply at the red edge (680-750 nm) to a high near-infrared plateau from
-  leaf scattering, and falls in the short-wave infrared where leaf water absorbs
-  (Jensen, Remote Sensing of the Environment, 2nd ed. 2007, ch. 11; from memory).
-- Senescent plants and straw lose the red absorption and the red edge and reflect
-  more in the SWIR (same source; common practice).
-- Water is brightest in blue-green and absorbs almost everything beyond 750 nm;
-  suspended sediment raises green and red, algae add a green peak and a peak near
-  705 nm (Jensen ch. 12; Gitelson 1992, Int. J. Remote Sensing 13:3367; from memory).
-- Bare soil reflectance rises with wavelength to the SWIR; wet soil is darker
-  across the spectrum, most in the SWIR (Baumgardner et al. 1985, Adv. Agronomy
-  38:1; Lobell and Asner 2002, Soil Sci. Soc. Am. J. 66:722; from memory).
-- Clouds are bright and nearly flat, darker in the SWIR (common practice); cloud
-  shadows keep the diffuse skylight, which is bluer (Rayleigh scattering; common
-  practice)."""
+are invented but follow well-known spectral shapes, each with its source below."""
+# - Green vegetation absorbs blue and red (chlorophyll), peaks a little in green,
+#   rises steeply at the red edge (680-750 nm) to a high near-infrared plateau from
+#   leaf scattering, and falls in the short-wave infrared where leaf water absorbs
+#   (Jensen, Remote Sensing of the Environment, 2nd ed. 2007, ch. 11; from memory).
+# - Senescent plants and straw lose the red absorption and the red edge and reflect
+#   more in the SWIR (same source; common practice).
+# - Water is brightest in blue-green and absorbs almost everything beyond 750 nm;
+#   suspended sediment raises green and red, algae add a green peak and a peak near
+#   705 nm (Jensen ch. 12; Gitelson 1992, Int. J. Remote Sensing 13:3367; from memory).
+# - Bare soil reflectance rises with wavelength to the SWIR; wet soil is darker
+#   across the spectrum, most in the SWIR (Baumgardner et al. 1985, Adv. Agronomy
+#   38:1; Lobell and Asner 2002, Soil Sci. Soc. Am. J. 66:722; from memory).
+# - Clouds are bright and nearly flat, darker in the SWIR (common practice); cloud
+#   shadows keep the diffuse skylight, which is bluer (Rayleigh scattering; common
+#   practice).
 import numpy as np
 
 BANDS = ["B01", "B02", "B03", "B04", "B05", "B06", "B07", "B08", "B8A", "B09", "B11", "B12"]
