@@ -83,6 +83,10 @@ tinct_script_test(label_matching ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/inte
 tinct_script_test(label_sources ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/label_sources.py)
 tinct_script_test(label_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/label_bad_input.py)
 
+# The demo scenario's generator in its small size, through survey, pair and label with the
+# example configs (examples/aldery-marsh).
+tinct_script_test(aldery_scenario ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/aldery_scenario.py)
+
 # tinct pretrain and export end to end.
 tinct_script_test(pretrain_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_runs.py)
 tinct_script_test(reference_pretrain_l7_colour ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pretrain_l7_colour.py)
