@@ -9,6 +9,7 @@
 #include <signal.h>
 
 #include <chrono>
+#include <map>
 #include <thread>
 
 #include "batches/batch_loader.hpp"
@@ -78,6 +79,7 @@ TEST_CASE("a single process opens nothing: collectives return at once and the ho
   tinct::ProcessGroup group;
   CHECK(group.single());
   CHECK(group.is_writer());
+  CHECK(group.any(true, "test"));
   std::vector<double> values{1.5, 2};
   group.sum(values, "test");
   CHECK(values == std::vector<double>{1.5, 2});
@@ -143,6 +145,8 @@ TEST_CASE("rank: sums broadcast and barrier", "[.]") {
   at::Tensor floats = torch::full({3, 4}, 0.5f * static_cast<float>(rank + 1));
   group->sum(floats, "test floats");
   CHECK(torch::equal(floats, torch::full({3, 4}, 1.5f)));
+  CHECK(group->any(rank == 1, "test stop request"));
+  CHECK_FALSE(group->any(false, "test stop request"));
 
   // Rank-dependent initial weights become rank 0's everywhere; average of buffers.
   torch::manual_seed(static_cast<std::uint64_t>(rank));
@@ -199,10 +203,10 @@ std::pair<torch::Tensor, double> summed_loss(TinyNet& net, const torch::Tensor& 
   return {sum, valid.sum().item<double>()};
 }
 
-std::vector<torch::Tensor> gradients_of(TinyNet& net) {
-  std::vector<torch::Tensor> grads;
-  for (const auto& parameter : net.parameters()) {
-    grads.push_back(parameter.grad().defined() ? parameter.grad().clone() : torch::Tensor());
+std::map<std::string, torch::Tensor> gradients_of(TinyNet& net) {
+  std::map<std::string, torch::Tensor> grads;
+  for (const auto& item : net.named_parameters()) {
+    grads[item.key()] = item.value().grad().defined() ? item.value().grad().clone() : torch::Tensor();
   }
   return grads;
 }
@@ -227,7 +231,7 @@ TEST_CASE("rank: gradients of half batches", "[.]") {
   // One process with the whole batch.
   auto [whole_sum, whole_count] = summed_loss(net, bands, target, valid, special);
   (whole_sum / whole_count).backward();
-  const std::vector<torch::Tensor> expected = gradients_of(net);
+  const std::map<std::string, torch::Tensor> expected = gradients_of(net);
   for (auto& parameter : net.parameters()) parameter.mutable_grad() = torch::Tensor();
 
   // This rank's half, its share of the global mean, then the bucketed average (buckets of
@@ -241,14 +245,16 @@ TEST_CASE("rank: gradients of half batches", "[.]") {
   const auto sync = tinct::make_gradient_sync(*group, 64);
   REQUIRE(sync);
   sync(net.parameters());
-  const std::vector<torch::Tensor> averaged = gradients_of(net);
+  const std::map<std::string, torch::Tensor> averaged = gradients_of(net);
 
-  REQUIRE(averaged.size() == expected.size());
+  REQUIRE(averaged.size() == 7);
   double largest = 0;
-  for (std::size_t i = 0; i < expected.size(); ++i) {
-    REQUIRE(averaged[i].defined() == expected[i].defined());  // frozen and unused: none anywhere
-    if (expected[i].defined()) largest = std::max(largest, (averaged[i] - expected[i]).abs().max().item<double>());
+  for (const auto& [name, grad] : expected) {
+    INFO(name);
+    REQUIRE(averaged.at(name).defined() == grad.defined());  // frozen and unused: none anywhere
+    if (grad.defined()) largest = std::max(largest, (averaged.at(name) - grad).abs().max().item<double>());
   }
+  CHECK(expected.at("special").defined());
   INFO("largest difference from one process: " << largest);
   CHECK(largest < 1e-6);
   CHECK_FALSE(net.frozen.grad().defined());
@@ -260,7 +266,18 @@ TEST_CASE("rank: gradients of half batches", "[.]") {
                                               valid.narrow(0, begin, half), my_special);
   (sum_again / count_again).backward();
   sync(net.parameters());
-  CHECK((net.first->weight.grad() - expected[0]).abs().max().item<double>() > 1e-4);
+  CHECK((net.first->weight.grad() - expected.at("first.weight")).abs().max().item<double>() > 1e-4);
+
+  // Freezing a parameter between steps changes the buckets; the others still match.
+  for (auto& parameter : net.parameters()) parameter.mutable_grad() = torch::Tensor();
+  net.first->weight.set_requires_grad(false);
+  auto [sum_frozen, count_frozen] = summed_loss(net, bands.narrow(0, begin, half), target.narrow(0, begin, half),
+                                                valid.narrow(0, begin, half), my_special);
+  tinct::global_mean_loss(*group, sum_frozen, count_frozen).backward();
+  sync(net.parameters());
+  CHECK_FALSE(net.first->weight.grad().defined());
+  CHECK((net.second->weight.grad() - expected.at("second.weight")).abs().max().item<double>() < 1e-6);
+  CHECK((net.special.grad() - expected.at("special")).abs().max().item<double>() < 1e-6);
 }
 
 TEST_CASE("bucketed gradient averaging over two ranks with B/2 each equals one process with batch B") {
@@ -330,7 +347,11 @@ TEST_CASE("a killed rank 0 (which hosts the rendezvous) makes the other stop too
 }
 
 TEST_CASE("rank: rank 1 goes silent", "[.]") {
-  const std::string message = survive([] { std::this_thread::sleep_for(std::chrono::seconds(kTimeoutSeconds + 2)); ::_exit(0); }, 1);
+  const auto go_silent = [] {
+    std::this_thread::sleep_for(std::chrono::milliseconds(1000 * kTimeoutSeconds + 500));
+    ::_exit(0);
+  };
+  const std::string message = survive(go_silent, 1);
   CHECK_THAT(message, Contains("rank 0 of 2: no answer from rank 1 within 3 s during the gradient all-reduce"));
 }
 

@@ -5,6 +5,7 @@
 
 #include <set>
 
+#include "distributed/distributed_settings.hpp"
 #include "distributed/free_port.hpp"
 #include "distributed/host_list.hpp"
 #include "distributed/local_launcher.hpp"
@@ -12,6 +13,7 @@
 #include "distributed/route_address.hpp"
 #include "distributed/shard.hpp"
 #include "temp_folder.hpp"
+#include "util/config_node.hpp"
 #include "util/error.hpp"
 
 using Catch::Matchers::Contains;
@@ -56,7 +58,8 @@ TEST_CASE("no rank variables: a single process") {
 }
 
 TEST_CASE("RANK, WORLD_SIZE, MASTER_ADDR and MASTER_PORT place the process") {
-  tinct::Environment environment{{"RANK", "2"}, {"WORLD_SIZE", "4"}, {"MASTER_ADDR", "10.0.0.5"}, {"MASTER_PORT", "29617"}};
+  tinct::Environment environment{
+      {"RANK", "2"}, {"WORLD_SIZE", "4"}, {"MASTER_ADDR", "10.0.0.5"}, {"MASTER_PORT", "29617"}};
   tinct::Rendezvous place = tinct::read_rendezvous(environment, 29500);
   CHECK(place.rank == 2);
   CHECK(place.world == 4);
@@ -82,7 +85,8 @@ TEST_CASE("a missing or malformed rank variable is a usage error naming it") {
   CHECK_THAT(message({{"RANK", "1"}}), Contains("WORLD_SIZE is not set but RANK is"));
   CHECK_THAT(message({{"WORLD_SIZE", "2"}}), Contains("RANK is not set"));
   CHECK_THAT(message({{"RANK", "1"}, {"WORLD_SIZE", "2"}}), Contains("MASTER_ADDR is not set but WORLD_SIZE is 2"));
-  CHECK_THAT(message({{"RANK", "2"}, {"WORLD_SIZE", "2"}, {"MASTER_ADDR", "h"}}), Contains("RANK = '2' must be a whole number from 0 to 1"));
+  CHECK_THAT(message({{"RANK", "2"}, {"WORLD_SIZE", "2"}, {"MASTER_ADDR", "h"}}),
+             Contains("RANK = '2' must be a whole number from 0 to 1"));
   CHECK_THAT(message({{"RANK", "x"}, {"WORLD_SIZE", "2"}, {"MASTER_ADDR", "h"}}), Contains("RANK = 'x'"));
   CHECK_THAT(message({{"RANK", "0"}, {"WORLD_SIZE", "0"}}), Contains("WORLD_SIZE = '0'"));
   CHECK_THAT(message({{"RANK", "0"}, {"WORLD_SIZE", "2"}, {"MASTER_ADDR", "h"}, {"MASTER_PORT", "70000"}}),
@@ -135,7 +139,8 @@ TEST_CASE("a free loopback port and the local address towards loopback") {
   CHECK(port > 0);
   CHECK(port < 65536);
   CHECK(tinct::local_address_towards("127.0.0.1") == "127.0.0.1");
-  CHECK_THROWS_WITH(tinct::local_address_towards("no-such-host.invalid"), Contains("'no-such-host.invalid' does not resolve"));
+  CHECK_THROWS_WITH(tinct::local_address_towards("no-such-host.invalid"),
+                    Contains("'no-such-host.invalid' does not resolve"));
 }
 
 TEST_CASE("the local launcher runs every rank with its variables and returns when all succeed") {
@@ -192,4 +197,21 @@ TEST_CASE("the local launcher stops ranks that outlive a failed one by more than
     CHECK_THAT(error.what(), Contains("local rank 0 of 2 failed first: it exited with status 1"));
     CHECK_THAT(error.what(), Contains("rank 1 was killed by SIGTERM"));
   }
+}
+
+TEST_CASE("the distributed section of a config: defaults, values and a misspelt key") {
+  const auto settings_of = [](const std::string& text) {
+    return tinct::read_distributed_settings(
+        tinct::ConfigNode::from_text(text, "p.yaml", ".").section("distributed"));
+  };
+  const tinct::DistributedSettings defaults = settings_of("config: pretrain\n");
+  CHECK(defaults.port == 29500);
+  CHECK(defaults.timeout_seconds == 300);
+  CHECK(defaults.bucket_bytes == 25u * 1024 * 1024);
+  const tinct::DistributedSettings set = settings_of("distributed: {port: 31000, timeout: 60, bucket_mb: 4}\n");
+  CHECK(set.port == 31000);
+  CHECK(set.timeout_seconds == 60);
+  CHECK(set.bucket_bytes == 4u * 1024 * 1024);
+  CHECK_THROWS_WITH(settings_of("distributed: {timeuot: 60}\n"), Contains("timeout"));
+  CHECK_THROWS_WITH(settings_of("distributed: {port: 0}\n"), Contains("distributed.port"));
 }

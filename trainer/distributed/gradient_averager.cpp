@@ -6,12 +6,25 @@
 #include "distributed/tensor_buckets.hpp"
 
 namespace tinct {
+
+// Reused while the trainable parameters keep their sizes: a fresh 25 MB tensor per bucket
+// and step costs page faults comparable to the copies themselves.
+struct GradientAverager::Buffers {
+  std::vector<std::int64_t> shape;  // numel per parameter, 0 when frozen
+  std::vector<TensorBucket> buckets;
+  std::vector<at::Tensor> flats;    // (elements + one presence flag per member) per bucket
+};
+
 namespace {
 
-// (elements | one presence flag per member): flags count the ranks that had a gradient.
-at::Tensor pack(const std::vector<at::Tensor>& parameters, const TensorBucket& bucket) {
-  const std::int64_t members = static_cast<std::int64_t>(bucket.members.size());
-  at::Tensor flat = torch::empty({bucket.elements + members}, parameters[bucket.members.front()].options());
+std::vector<std::int64_t> trainable_shape(const std::vector<at::Tensor>& parameters) {
+  std::vector<std::int64_t> shape;
+  for (const at::Tensor& parameter : parameters) shape.push_back(parameter.requires_grad() ? parameter.numel() : 0);
+  return shape;
+}
+
+// Gradients into `flat`, missing ones as zeros; the flags count the ranks that had one.
+void pack(const std::vector<at::Tensor>& parameters, const TensorBucket& bucket, at::Tensor& flat) {
   std::vector<double> present;
   std::int64_t offset = 0;
   for (std::size_t i : bucket.members) {
@@ -21,21 +34,22 @@ at::Tensor pack(const std::vector<at::Tensor>& parameters, const TensorBucket& b
     present.push_back(grad.defined() ? 1 : 0);
     offset += parameters[i].numel();
   }
+  const std::int64_t members = static_cast<std::int64_t>(bucket.members.size());
   flat.narrow(0, bucket.elements, members).copy_(torch::tensor(present, torch::kFloat64));
-  return flat;
 }
 
-void unpack(const at::Tensor& flat, const std::vector<at::Tensor>& parameters, const TensorBucket& bucket) {
+// The summed gradients divided by `world` back into the parameters that some rank had.
+void unpack(const at::Tensor& flat, const std::vector<at::Tensor>& parameters, const TensorBucket& bucket, int world) {
   const std::int64_t members = static_cast<std::int64_t>(bucket.members.size());
   const at::Tensor present = flat.narrow(0, bucket.elements, members).to(torch::kFloat64).contiguous();
   std::int64_t offset = 0;
   for (std::size_t m = 0; m < bucket.members.size(); ++m) {
     const at::Tensor& parameter = parameters[bucket.members[m]];
     const std::int64_t count = parameter.numel();
-    if (present.data_ptr<double>()[m] > 0) {  // some rank had a gradient
+    if (present.data_ptr<double>()[m] > 0) {
       at::Tensor& grad = parameter.mutable_grad();
-      if (!grad.defined()) grad = torch::zeros_like(parameter);
-      grad.copy_(flat.narrow(0, offset, count).view_as(parameter));
+      if (!grad.defined()) grad = torch::empty_like(parameter);
+      torch::div_out(grad, flat.narrow(0, offset, count).view_as(parameter), world);
     }
     offset += count;
   }
@@ -44,18 +58,30 @@ void unpack(const at::Tensor& flat, const std::vector<at::Tensor>& parameters, c
 }  // namespace
 
 GradientAverager::GradientAverager(ProcessGroup& group, std::size_t bucket_bytes)
-    : group_(&group), bucket_bytes_(bucket_bytes) {}
+    : group_(&group), bucket_bytes_(bucket_bytes), buffers_(std::make_shared<Buffers>()) {}
 
 void GradientAverager::operator()(const std::vector<at::Tensor>& parameters) const {
   if (group_->single()) return;
   torch::NoGradGuard no_grad;
   std::vector<at::Tensor> trainable;
-  for (const at::Tensor& parameter : parameters) trainable.push_back(parameter.requires_grad() ? parameter : at::Tensor());
-  for (const TensorBucket& bucket : plan_buckets(trainable, bucket_bytes_)) {
-    at::Tensor flat = pack(trainable, bucket);
-    group_->sum(flat, "gradient all-reduce");
-    flat.narrow(0, 0, bucket.elements).div_(group_->world());
-    unpack(flat, trainable, bucket);
+  for (const at::Tensor& parameter : parameters) {
+    trainable.push_back(parameter.requires_grad() ? parameter : at::Tensor());
+  }
+  Buffers& buffers = *buffers_;
+  const std::vector<std::int64_t> shape = trainable_shape(parameters);
+  if (shape != buffers.shape) {  // first step, or parameters were frozen or unfrozen
+    buffers.shape = shape;
+    buffers.buckets = plan_buckets(trainable, bucket_bytes_);
+    buffers.flats.clear();
+    for (const TensorBucket& bucket : buffers.buckets) {
+      const std::int64_t members = static_cast<std::int64_t>(bucket.members.size());
+      buffers.flats.push_back(torch::empty({bucket.elements + members}, trainable[bucket.members.front()].options()));
+    }
+  }
+  for (std::size_t b = 0; b < buffers.buckets.size(); ++b) {
+    pack(trainable, buffers.buckets[b], buffers.flats[b]);
+    group_->sum(buffers.flats[b], "gradient all-reduce");
+    unpack(buffers.flats[b], trainable, buffers.buckets[b], group_->world());
   }
 }
 

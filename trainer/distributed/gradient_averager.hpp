@@ -7,6 +7,7 @@
 
 #include <cstddef>
 #include <functional>
+#include <memory>
 #include <vector>
 
 namespace at {
@@ -25,8 +26,10 @@ class GradientAverager {
   void operator()(const std::vector<at::Tensor>& parameters) const;
 
  private:
+  struct Buffers;  // the bucket plan and its flat tensors, kept from step to step
   ProcessGroup* group_;
   std::size_t bucket_bytes_;
+  std::shared_ptr<Buffers> buffers_;  // shared by copies (a std::function holds one)
 };
 
 // The hook for a training step: empty for a single process (nothing to do, no cost).

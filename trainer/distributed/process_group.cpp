@@ -93,6 +93,12 @@ void ProcessGroup::sum(std::vector<double>& values, const std::string& what) {
   std::copy(summed, summed + values.size(), values.begin());
 }
 
+bool ProcessGroup::any(bool value, const std::string& what) {
+  std::vector<double> count{value ? 1.0 : 0.0};
+  sum(count, what);
+  return count[0] > 0;
+}
+
 void ProcessGroup::sum(at::Tensor& tensor, const std::string& what) {
   if (single()) return;
   std::vector<at::Tensor> tensors{tensor};

@@ -35,6 +35,9 @@ class ProcessGroup {
   // `what` names the operation in errors ("validation sums", "gradient all-reduce").
   // Element-wise sums over all ranks, in place; every rank passes the same length.
   void sum(std::vector<double>& values, const std::string& what);
+  // Whether `value` is true on any rank (a stop request, a non-finite loss), so that every
+  // rank takes the same branch.
+  bool any(bool value, const std::string& what);
   // One contiguous tensor summed over all ranks, in place (same shape and type everywhere).
   void sum(at::Tensor& tensor, const std::string& what);
   // Rank 0's contents copied into this rank's tensor, in place.
