@@ -36,7 +36,7 @@ std::unique_ptr<tinct::ProcessGroup> join_job() {
   tinct::DistributedSettings settings;
   settings.timeout_seconds = kTimeoutSeconds;
   const tinct::Rendezvous place = tinct::read_rendezvous(tinct::process_environment(), 0);
-  REQUIRE(place.world == 2);
+  REQUIRE(place.world >= 2);
   return std::make_unique<tinct::ProcessGroup>(place, settings);
 }
 

@@ -1,9 +1,14 @@
 // Where a process sits in a data-parallel job, without LibTorch: Slurm host lists, the
 // environment variables, shard slices, the free-port probe and the local launcher with a
-// real shell as its rank program (exit codes, environment, the failed rank named).
+// real shell as its rank program (exit codes, environment, signals, the failed rank named).
+#include <signal.h>
+#include <unistd.h>
+
 #include <catch2/catch.hpp>
 
-#include <set>
+#include <chrono>
+#include <filesystem>
+#include <thread>
 
 #include "distributed/distributed_settings.hpp"
 #include "distributed/free_port.hpp"
@@ -182,6 +187,30 @@ TEST_CASE("the local launcher names the rank that failed first and how the other
   } catch (const tinct::Error& error) {
     CHECK(error.exit_code() == 2);
   }
+}
+
+TEST_CASE("the local launcher forwards SIGTERM to every rank exactly once") {
+  TempFolder folder;
+  tinct::LocalLaunch launch;
+  launch.world = 2;
+  launch.program = "/bin/sh";
+  launch.arguments = {"-c",
+                      "trap 'echo TERM >> \"$0/got$RANK\"; exit 0' TERM; touch \"$0/ready$RANK\"; "
+                      "while :; do sleep 0.05; done",
+                      folder.path().string()};
+  std::thread sender([&] {  // SIGTERM to this process, as a scheduler would send it, once both ranks listen
+    const auto ready = [&] {
+      return std::filesystem::exists(folder / "ready0") && std::filesystem::exists(folder / "ready1");
+    };
+    for (int i = 0; i < 400 && !ready(); ++i) {
+      std::this_thread::sleep_for(std::chrono::milliseconds(25));
+    }
+    ::kill(::getpid(), SIGTERM);
+  });
+  tinct::run_local_ranks(launch);  // both ranks end with status 0 after their trap
+  sender.join();
+  CHECK(read_text(folder / "got0") == "TERM\n");
+  CHECK(read_text(folder / "got1") == "TERM\n");
 }
 
 TEST_CASE("the local launcher stops ranks that outlive a failed one by more than the grace") {

@@ -37,9 +37,8 @@ std::string peer(const CollectiveContext& context) {
 }  // namespace
 
 void fail_join(const CollectiveContext& context, const std::exception& error) {
-  fail_runtime(speaker(context) + " could not join the job at " + address(context) + " within " +
-               std::to_string(context.timeout_seconds) + " s (" + engine_text(error) + "). " + kStartHint +
-               "; if the port is in use, pick another MASTER_PORT");
+  fail_runtime(speaker(context) + " could not join the job at " + address(context) + " (" + engine_text(error) +
+               "). " + kStartHint + "; if the port is in use, pick another MASTER_PORT");
 }
 
 void fail_incomplete_join(const CollectiveContext& context, int joined) {

@@ -16,7 +16,7 @@ struct CollectiveContext {
   int timeout_seconds = 0;
 };
 
-// The store or the process group could not be set up (no rank 0, port in use, timeout).
+// The store or the process group could not be set up (rank 0 unreachable, port in use).
 [[noreturn]] void fail_join(const CollectiveContext& context, const std::exception& error);
 
 // Only `joined` ranks counted themselves in within the timeout.
