@@ -99,6 +99,14 @@ tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)
 
+# Pixel baselines against scikit-learn on the real Landsat 7 subset: the tool writes features
+# and predictions for the splits the script chooses; the script fits scikit-learn on the same.
+add_executable(tinct_baseline_tool tests/reference/baseline_tool.cpp)
+target_link_libraries(tinct_baseline_tool PRIVATE tinct_baselines)
+tinct_script_test(reference_baselines_l7_vs_sklearn ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/baselines_l7_vs_sklearn.py $<TARGET_FILE:tinct_baseline_tool>)
+set_tests_properties(reference_baselines_l7_vs_sklearn PROPERTIES FIXTURES_REQUIRED debian_data)
+
 # Stores: a second writer is refused while the first, stopped mid-write by strace, finishes.
 tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
 
