@@ -1,0 +1,22 @@
+// How a data-parallel job meets and how long it waits: the settings a config or flags give;
+// where each process sits in the job comes from the environment (rendezvous.hpp).
+#pragma once
+
+#include <cstddef>
+
+namespace tinct {
+
+class ConfigNode;
+
+struct DistributedSettings {
+  int port = 29500;             // rank 0's rendezvous port when MASTER_PORT is not set
+  int timeout_seconds = 300;    // joining, and any collective waiting for a silent peer
+  std::size_t bucket_bytes = 25u << 20;  // gradients are all-reduced in flat buckets of this size
+};
+
+// A config's `distributed:` section (the caller passes root.section("distributed")):
+//   port: 29500   timeout: 300 (seconds)   bucket_mb: 25
+// Calls node.finish().
+DistributedSettings read_distributed_settings(const ConfigNode& node);
+
+}  // namespace tinct
