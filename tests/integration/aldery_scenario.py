@@ -184,7 +184,7 @@ with tempfile.TemporaryDirectory() as work:
         points = read_points(os.path.join(data, f"sites-{name}.geojson"), fields)
         key = config["labels"]["id"]
         by_id = {p[key]: p for p in points}
-        with open(out + ".dropped.csv", newline="") as f:
+        with open(os.path.join(out, "dropped.csv"), newline="") as f:
             dropped = list(csv.DictReader(f))
         checks.check(labels.count + len(dropped) == len(points),
                      f"{name}: {labels.count} kept + {len(dropped)} dropped = {len(points)} labels")
