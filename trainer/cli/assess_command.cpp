@@ -1,6 +1,6 @@
 // tinct assess RUN --on STORE: a finetune run's model applied to any label store.
 #include "cli/commands.hpp"
-#include "finetune/assess_job.hpp"
+#include "inference/assess_job.hpp"
 
 namespace tinct {
 

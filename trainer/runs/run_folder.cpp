@@ -60,6 +60,7 @@ std::string to_string(RunStatus status) {
     case RunStatus::running: return "running";
     case RunStatus::done: return "done";
     case RunStatus::stopped: return "stopped";
+    case RunStatus::interrupted: return "interrupted";
     case RunStatus::failed: return "failed";
   }
   return "unknown";
@@ -110,12 +111,13 @@ std::string RunFolder::write_config(const std::string& resolved_yaml) {
   return config_hash_;
 }
 
-void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::string& note) {
+void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::string& reason) {
   if (started_.empty()) started_ = utc_now();
   const BlasInUse blas = blas_in_use();
   YAML::Emitter out;
   out << YAML::BeginMap;
   out << YAML::Key << "status" << YAML::Value << to_string(status);
+  if (!reason.empty()) out << YAML::Key << "reason" << YAML::Value << reason;
   out << YAML::Key << "started" << YAML::Value << started_;
   out << YAML::Key << "ended" << YAML::Value << (status == RunStatus::running ? "" : utc_now());
   out << YAML::Key << "versions" << YAML::Value << YAML::BeginMap;
@@ -131,7 +133,6 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
   out << YAML::EndMap;
   out << YAML::Key << "seed" << YAML::Value << seed;
   out << YAML::Key << "config_hash" << YAML::Value << config_hash_;
-  if (!note.empty()) out << YAML::Key << "note" << YAML::Value << note;
   out << YAML::EndMap;
   write_file_atomic(file("run.yaml"), std::string(out.c_str()) + "\n");
 }
