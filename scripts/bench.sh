@@ -5,8 +5,9 @@
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh > /dev/null
-cmake --build build -j"$(nproc)" --target tinct_train_bench > /dev/null
+cmake --build build -j"$(nproc)" --target tinct_train_bench tinct_assess_bench > /dev/null
 work=${TINCT_BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
 /usr/bin/python3 scripts/bench/pair_bench.py "$PWD/build/tinct" "$work"
 /usr/bin/python3 scripts/bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
+build/tinct_assess_bench 5000 256 20000

@@ -10,6 +10,9 @@ packages=(
   libgdal-dev gdal-bin libopencv-dev libyaml-cpp-dev libcli11-dev catch2
   # used by the reference tests (Debian's /usr/bin/python3) and the demo
   python3-numpy python3-gdal python3-sklearn python3-scipy python3-skimage python3-yaml proj-bin
+  python3-statsmodels
+  # crash tests stop or kill tinct at a chosen system call
+  strace
 )
 
 missing=()

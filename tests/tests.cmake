@@ -44,6 +44,25 @@ catch_discover_tests(tinct_reference_tests PROPERTIES
   FIXTURES_REQUIRED "colour_reference\\\\\\\\;metrics_reference"
   ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
 
+# Paired statistics, temperature scaling and area of applicability against SciPy, statsmodels
+# and numpy the same way: one script per idea writes its CSVs (one fixture each),
+# tinct_assess_reference_tests reads them.
+foreach(reference paired_statistics temperature applicability)
+  add_test(NAME make_${reference}_reference
+           COMMAND ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/make_${reference}_reference.py)
+  set_tests_properties(make_${reference}_reference PROPERTIES
+    FIXTURES_SETUP ${reference}_reference ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+endforeach()
+add_executable(tinct_assess_reference_tests
+  tests/reference/test_applicability_reference.cpp
+  tests/reference/test_paired_statistics_reference.cpp
+  tests/reference/test_temperature_reference.cpp)
+target_link_libraries(tinct_assess_reference_tests PRIVATE tinct_assess tinct_catch_main)
+# Three fixtures, the list's ';' escaped for catch_discover_tests as above.
+catch_discover_tests(tinct_assess_reference_tests PROPERTIES
+  FIXTURES_REQUIRED "paired_statistics_reference\\\\\\\\;temperature_reference\\\\\\\\;applicability_reference"
+  ENVIRONMENT "TINCT_TEST_DATA=${TINCT_TEST_DATA}")
+
 # tinct pair: real data, GDAL's own warper, co-registration and bad input.
 tinct_script_test(reference_pair_l7_vs_gdal ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pair_l7_vs_gdal.py)
 set_tests_properties(reference_pair_l7_vs_gdal PROPERTIES FIXTURES_REQUIRED debian_data)
@@ -80,3 +99,28 @@ tinct_script_test(finetune_resume ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/int
 tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# Pixel baselines against scikit-learn on the real Landsat 7 subset: the tool writes features
+# and predictions for the splits the script chooses; the script fits scikit-learn on the same.
+add_executable(tinct_baseline_tool tests/reference/baseline_tool.cpp)
+target_link_libraries(tinct_baseline_tool PRIVATE tinct_baselines)
+tinct_script_test(reference_baselines_l7_vs_sklearn ${DEBIAN_PYTHON}
+  ${CMAKE_SOURCE_DIR}/tests/reference/baselines_l7_vs_sklearn.py $<TARGET_FILE:tinct_baseline_tool>)
+set_tests_properties(reference_baselines_l7_vs_sklearn PROPERTIES FIXTURES_REQUIRED debian_data)
+
+# Stores: a second writer is refused while the first, stopped mid-write by strace, finishes.
+tinct_script_test(store_concurrency ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_concurrency.py)
+
+# The study report (no LibTorch): a hand-made sample (invented numbers) written as report.html,
+# parsed as HTML, every inline SVG as XML, and rendered to a PNG by headless Chromium without
+# console errors (study_report_render installs Debian's chromium if it can, else is skipped
+# saying why). The PNG stays in the test data folder to be looked at.
+add_executable(tinct_sample_report tests/integration/write_sample_report.cpp
+                                   tests/support/sample_study_report.cpp)
+target_include_directories(tinct_sample_report PRIVATE ${CMAKE_SOURCE_DIR}/tests/support)
+target_link_libraries(tinct_sample_report PRIVATE tinct_study)
+tinct_script_test(study_report_html ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_report.py
+  $<TARGET_FILE:tinct_sample_report> ${TINCT_TEST_DATA}/study_report_html)
+tinct_script_test(study_report_render ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_report.py
+  $<TARGET_FILE:tinct_sample_report> ${TINCT_TEST_DATA}/study_report_render --render)
+set_tests_properties(study_report_render PROPERTIES SKIP_RETURN_CODE 77)

@@ -65,7 +65,9 @@ void write_file_atomic(const fs::path& path, const std::string& contents) {
 }
 
 PartialFolder::PartialFolder(fs::path target, bool replace)
-    : target_(std::move(target)), replace_(replace) {
+    : target_(std::move(target)),
+      lock_(target_, lock_file_beside(target_), "wait for it to finish or choose another output"),
+      replace_(replace) {
   partial_ = target_;
   partial_ += ".partial";
   if (fs::exists(target_) && !replace_) {

@@ -6,6 +6,8 @@
 #include <filesystem>
 #include <string>
 
+#include "util/folder_lock.hpp"
+
 namespace tinct {
 
 // Replaces `path` with `contents` atomically.
@@ -18,10 +20,12 @@ std::filesystem::path temporary_sibling(const std::filesystem::path& path);
 void commit_file(const std::filesystem::path& written, const std::filesystem::path& target);
 
 // A folder built under NAME.partial/ and renamed to NAME by commit(); removed if
-// destroyed before commit (an exception or an early return).
+// destroyed before commit (an exception or an early return). Holds the lock file
+// NAME.lock from before NAME.partial/ is touched until it is gone again, so a second
+// writer is refused instead of deleting the first one's work.
 class PartialFolder {
  public:
-  // Fails if `target` exists unless `replace` is set.
+  // Fails if `target` exists unless `replace` is set, or if another process writes it.
   PartialFolder(std::filesystem::path target, bool replace);
   ~PartialFolder();
   PartialFolder(const PartialFolder&) = delete;
@@ -33,6 +37,7 @@ class PartialFolder {
 
  private:
   std::filesystem::path target_;
+  FolderLock lock_;
   std::filesystem::path partial_;
   bool replace_;
   bool committed_ = false;
