@@ -1,9 +1,5 @@
 #include "runs/run_folder.hpp"
 
-#include <fcntl.h>
-#include <sys/file.h>
-#include <unistd.h>
-
 #include <yaml-cpp/yaml.h>
 
 #include <chrono>
@@ -30,21 +26,6 @@ std::string utc_now() {
   char text[32];
   std::strftime(text, sizeof(text), "%Y-%m-%dT%H:%M:%SZ", &utc);
   return text;
-}
-
-int take_lock(const fs::path& lock_path, const fs::path& run) {
-  const int fd = ::open(lock_path.c_str(), O_CREAT | O_RDWR | O_CLOEXEC, 0644);
-  if (fd < 0) fail_runtime("cannot create " + lock_path.string() + "; check that the folder is writable");
-  if (::flock(fd, LOCK_EX | LOCK_NB) != 0) {
-    ::close(fd);
-    fail_runtime("run " + run.string() + " is in use by another tinct process; wait for it to "
-                 "finish or choose another run name");
-  }
-  const std::string pid = std::to_string(::getpid()) + "\n";
-  if (::ftruncate(fd, 0) == 0) {
-    [[maybe_unused]] const ssize_t written = ::write(fd, pid.data(), pid.size());
-  }
-  return fd;
 }
 
 void clear_folder(const fs::path& folder, const fs::path& keep) {
@@ -77,33 +58,33 @@ std::string RunFolder::recorded_status(const fs::path& run_path) {
   }
 }
 
-RunFolder::RunFolder(fs::path path, RunOpening opening) : path_(std::move(path)) {
+fs::path RunFolder::created(const fs::path& path) {
   std::error_code ec;
-  fs::create_directories(path_, ec);
-  if (ec) fail_runtime("cannot create run folder " + path_.string() + ": " + ec.message());
-  const fs::path lock_path = path_ / "lock";
-  lock_fd_ = take_lock(lock_path, path_);
+  fs::create_directories(path, ec);
+  if (ec) fail_runtime("cannot create run folder " + path.string() + ": " + ec.message());
+  return path;
+}
+
+RunFolder::RunFolder(fs::path path, RunOpening opening)
+    : path_(created(path)), lock_(path_, path_ / "lock", "wait for it to finish or choose another run name") {
   const std::string status = recorded_status(path_);
   if (!status.empty() && !opening.force && !opening.resume) {
-    ::close(lock_fd_);
     fail_usage("run " + path_.string() + " exists (status: " + status +
                "); pass --resume to continue it or --force to start it over");
   }
-  if (opening.force && !opening.resume) clear_folder(path_, lock_path);
+  if (opening.force && !opening.resume) clear_folder(path_, lock_.lock_file());
   log::set_file(path_ / "log.txt");
+  if (lock_.stale_holder() != 0) {
+    log::write_file_only(log::Level::info, "took over the lock left by process " +
+                                               std::to_string(lock_.stale_holder()) + ", which has ended");
+  }
   if (blas_in_use().is_reference()) {
     log::warning("LibTorch is using the reference BLAS (about 30x slower matrix products); "
                  "install libopenblas0-pthread (scripts/setup.sh does)");
   }
 }
 
-RunFolder::~RunFolder() {
-  log::close_file();
-  if (lock_fd_ >= 0) {
-    ::flock(lock_fd_, LOCK_UN);
-    ::close(lock_fd_);
-  }
-}
+RunFolder::~RunFolder() { log::close_file(); }  // then lock_ removes the lock file
 
 std::string RunFolder::write_config(const std::string& resolved_yaml) {
   write_file_atomic(file("config.resolved.yaml"), resolved_yaml);

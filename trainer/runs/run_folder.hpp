@@ -1,12 +1,15 @@
 // A run folder runs/NAME/: config.resolved.yaml, run.yaml (status and its reason,
 // times, versions, threads, BLAS, seed, config hash) and log.txt. Holding a RunFolder
-// holds an exclusive lock on it; a second writer is refused. Every file in it is
-// written atomically.
+// holds an exclusive lock on it (NAME/lock, util/folder_lock): a second writer is
+// refused, a lock left by a killed process is taken over (noted in log.txt), and the
+// lock file is removed when the RunFolder ends. Every file in it is written atomically.
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
 #include <string>
+
+#include "util/folder_lock.hpp"
 
 namespace tinct {
 
@@ -39,8 +42,10 @@ class RunFolder {
   static std::string recorded_status(const std::filesystem::path& run_path);
 
  private:
+  static std::filesystem::path created(const std::filesystem::path& path);
+
   std::filesystem::path path_;
-  int lock_fd_ = -1;
+  FolderLock lock_;
   std::string config_hash_;
   std::string started_;
 };
