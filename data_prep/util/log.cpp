@@ -67,6 +67,12 @@ void write(Level level, const std::string& message) {
   if (s.file.is_open()) s.file << timestamp() << ' ' << prefix(level) << message << std::endl;
 }
 
+void write_file_only(Level level, const std::string& message) {
+  Sink& s = sink();
+  std::lock_guard<std::mutex> lock(s.mutex);
+  if (s.file.is_open()) s.file << timestamp() << ' ' << prefix(level) << message << std::endl;
+}
+
 bool stderr_is_terminal() { return ::isatty(STDERR_FILENO) == 1; }
 
 void write_raw(const std::string& text) {

@@ -19,6 +19,8 @@ inline void info(const std::string& message) { write(Level::info, message); }
 inline void warning(const std::string& message) { write(Level::warning, message); }
 inline void error(const std::string& message) { write(Level::error, message); }
 inline void debug(const std::string& message) { write(Level::debug, message); }
+// Only into the run's log file (e.g. a failure that main reports on stderr anyway).
+void write_file_only(Level level, const std::string& message);
 
 // Whether stderr is an interactive terminal (progress updates one line in place).
 bool stderr_is_terminal();

@@ -2,8 +2,8 @@
 rule (class = the land cover under the site: wet ground has low NIR and SWIR).
 Fine-tuning beats chance (macro F1 0.5 for two classes) clearly, with a frozen
 encoder (linear probe) and with full fine-tuning; a scratch run and a pretrained run
-differ only in their init; assess reproduces the run's own test metrics; the
-metrics in metrics.json equal scikit-learn's (Debian python3-sklearn 1.2) on
+differ only in their init; assess on a store of the run's own test chips reproduces
+the run's test metrics (metrics.json) and predictions; the metrics in metrics.json equal scikit-learn's (Debian python3-sklearn 1.2) on
 predictions.csv; an encoder whose bands differ from the store's is refused."""
 import csv
 import json
@@ -30,6 +30,34 @@ def tinct(work, *args):
     if run.returncode:
         print(run.stderr)
     return run
+
+
+def subset_store(source, target, ids):
+    """A copy of label store `source` holding only the chips whose source_id is in `ids`,
+    written with numpy as data_prep/chips/FORMAT.md lays a store out."""
+    manifest = yaml.safe_load(open(os.path.join(source, "manifest.yaml")))
+    with open(os.path.join(source, "chips.csv"), newline="") as f:
+        reader = csv.DictReader(f)
+        fields, chips = reader.fieldnames, list(reader)
+    keep = [i for i, chip in enumerate(chips) if chip["source_id"] in ids]
+    count, size, nbands = len(chips), manifest["chip_size"], len(manifest["bands"])
+    os.makedirs(target)
+    dtype = "<u2" if manifest["bands"][0]["storage"] == "uint16" else "<f4"
+    for name, shape, kind in (("bands.bin", (nbands, size, size), dtype), ("valid.bin", (size, size), "u1"),
+                              ("colour.bin", (3, size, size), "u1")):
+        path = os.path.join(source, name)
+        if os.path.exists(path):
+            values = np.fromfile(path, dtype=kind).reshape((count, *shape))
+            values[keep].tofile(os.path.join(target, name))
+    with open(os.path.join(target, "chips.csv"), "w", newline="") as f:
+        writer = csv.DictWriter(f, fieldnames=fields, lineterminator="\n")
+        writer.writeheader()
+        for index, i in enumerate(keep):
+            writer.writerow({**chips[i], "index": str(index)})
+    manifest["chip_count"] = len(keep)
+    with open(os.path.join(target, "manifest.yaml"), "w") as f:
+        yaml.safe_dump(manifest, f, sort_keys=False)
+    return len(keep)
 
 
 def finetune_config(work, name, init, freeze="full", stores="sites.labels"):
@@ -147,6 +175,26 @@ chips: {size: 16, min_valid: 0.9, block_size: 640}
     checks.check(len(rows) == assessed["count"], "assess predicts every chip of the store")
     checks.check(abs(f1_score([r["true"] for r in rows], [r["predicted"] for r in rows], average="macro") -
                      assessed["macro_f1"]) < 1e-9, "assess macro F1 equals scikit-learn's")
+
+    # assess on exactly the run's test chips reproduces the run's test metrics and predictions.
+    run_folder = os.path.join(work, "runs", "full")
+    with open(os.path.join(run_folder, "predictions.csv")) as f:
+        test_rows = list(csv.DictReader(f))
+    kept = subset_store(os.path.join(work, "sites.labels"), os.path.join(work, "test.labels"),
+                        {r["id"] for r in test_rows})
+    checks.check(kept == len(test_rows), f"the test chips found in the store: {kept} of {len(test_rows)}")
+    run = tinct(work, "assess", "runs/full", "--on", "test.labels", "--out", "assessed-test")
+    checks.check(run.returncode == 0, "assess on the test chips runs")
+    own = json.load(open(os.path.join(run_folder, "metrics.json")))
+    again = json.load(open(os.path.join(work, "assessed-test", "metrics.json")))
+    for key in own:
+        close = (again.get(key) == own[key] or
+                 (isinstance(own[key], float) and isinstance(again.get(key), float) and abs(own[key] - again[key]) < 1e-9))
+        checks.check(close, f"assess reproduces the run's {key}: {again.get(key)} vs {own[key]}")
+    with open(os.path.join(work, "assessed-test", "predictions.csv")) as f:
+        assessed_rows = {r["id"]: r for r in csv.DictReader(f)}
+    checks.check(all(assessed_rows[r["id"]]["predicted"] == r["predicted"] for r in test_rows),
+                 "assess predicts every test chip as the run did")
 
     run = tinct(work, "finetune", finetune_config(work, "wrong", "{from: pretrain, run: runs/pre}",
                                                    stores="reversed.labels"))

@@ -1,14 +1,18 @@
 """tinct pretrain end to end on a small generated pair store (real files, real
-processes): a run folder with every file DESIGN.md lists; --stop-after then
---resume gives exactly the losses of an uninterrupted run (one thread, fixed
-seed); a diverging run stops on the NaN guard with a clear error and keeps its
-last good checkpoint; a second writer is refused; tinct export writes
-safetensors that a numpy-only reader (tests/support/safetensors_numpy.py) loads."""
+processes): a run folder with every file DESIGN.md lists; preview PNGs that decode
+(GDAL's PNG driver) at the size of their layout; --stop-after then --resume gives
+exactly the losses of an uninterrupted run (one thread, fixed seed), and so does
+SIGTERM mid-run (status interrupted with its reason) then --resume; a diverging run
+stops on the NaN guard with a clear error, keeps its last good checkpoint and says
+why in run.yaml and log.txt; tinct export writes safetensors that a numpy-only
+reader (tests/support/safetensors_numpy.py) loads."""
 import csv
 import os
+import signal
 import subprocess
 import sys
 import tempfile
+import time
 
 import numpy as np
 import yaml
@@ -16,6 +20,7 @@ import yaml
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
 from synthetic import Checks, texture, write, write_profile  # noqa: E402
 from safetensors_numpy import read_safetensors  # noqa: E402
+from osgeo import gdal  # noqa: E402
 
 TINCT = os.environ["TINCT"]
 checks = Checks()
@@ -31,18 +36,25 @@ def losses(run):
         return {int(r["step"]): r["loss"] for r in csv.DictReader(f)}
 
 
-def pretrain_config(work, name, extra_train="", lr="0.003"):
+def pretrain_config(work, name, extra_train="", lr="0.003", steps=12, every=6):
     path = os.path.join(work, f"{name}.yaml")
     with open(path, "w") as f:
         f.write(f"""config: pretrain
 stores: [small.pairs]
 output: runs/{name}
 model: {{encoder: compact, width: 0.5}}
-train: {{steps: 12, batch: 8, lr: {lr}, warmup: 2, log_every: 1, seed: 5{extra_train}}}
-validation: {{every: 6, chips: 16, previews: 4}}
+train: {{steps: {steps}, batch: 8, lr: {lr}, warmup: 2, log_every: 1, seed: 5{extra_train}}}
+validation: {{every: {every}, chips: 16, previews: 4}}
 checkpoints: {{every: 4, keep: 2}}
 """)
     return path
+
+
+def preview_size(chips, size, gap=2, min_tile=96):
+    """Width and height of a preview PNG as colour_preview.cpp lays it out: one row per chip
+    (truth | prediction) with `gap` pixels around tiles, enlarged to tiles of >= min_tile px."""
+    scale = max(1, min_tile // size)
+    return (2 * size + 3 * gap) * scale, (chips * (size + gap) + gap) * scale
 
 
 with tempfile.TemporaryDirectory() as work:
@@ -78,6 +90,11 @@ scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-0
     checks.check(checkpoints == ["step-00000008.pt", "step-00000012.pt"], f"last 2 kept: {checkpoints}")
     previews = sorted(os.listdir(os.path.join(folder, "previews")))
     checks.check(previews == ["step-00000006.png", "step-00000012.png"], f"previews {previews}")
+    for name in previews:
+        png = gdal.Open(os.path.join(folder, "previews", name))
+        size = (png.RasterXSize, png.RasterYSize, png.RasterCount) if png else None
+        checks.check(png is not None and png.GetDriver().ShortName == "PNG" and
+                     size == (*preview_size(4, 32), 3), f"{name} decodes as a 3-band PNG of the layout's size: {size}")
     with open(os.path.join(folder, "metrics.csv")) as f:
         rows = list(csv.DictReader(f))
     checks.check([int(r["step"]) for r in rows] == list(range(1, 13)), "a metrics row per step")
@@ -103,8 +120,37 @@ scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-0
     wild = pretrain_config(work, "wild", extra_train=", optimizer: sgd, clip_norm: 0", lr="1.0e+12")
     run = tinct("pretrain", wild)
     checks.check(run.returncode == 1 and "not finite" in run.stderr, f"NaN guard: {run.returncode} {run.stderr}")
-    wild_status = yaml.safe_load(open(os.path.join(work, "runs", "wild", "run.yaml")))["status"]
-    checks.check(wild_status == "failed", f"diverged run status {wild_status}")
+    wild_status = yaml.safe_load(open(os.path.join(work, "runs", "wild", "run.yaml")))
+    checks.check(wild_status["status"] == "failed" and "not finite" in wild_status.get("reason", ""),
+                 f"diverged run status and reason {wild_status}")
+    wild_log = open(os.path.join(work, "runs", "wild", "log.txt")).read()
+    checks.check("pretrain failed: " in wild_log and "not finite" in wild_log, "log.txt says why the run failed")
+
+    # SIGTERM once the first checkpoint exists: the step finishes, a checkpoint is written, the
+    # run says interrupted and why; --resume then gives the uninterrupted run's losses.
+    long = pretrain_config(work, "long", steps=32, every=16)
+    run = tinct("pretrain", long)
+    checks.check(run.returncode == 0, f"32-step run: {run.stderr[-300:]}")
+    signalled = pretrain_config(work, "signalled", steps=32, every=16)
+    process = subprocess.Popen([TINCT, "--threads", "1", "pretrain", signalled], stdout=subprocess.PIPE,
+                               stderr=subprocess.PIPE, text=True)
+    checkpoints = os.path.join(work, "runs", "signalled", "checkpoints")
+    deadline = time.time() + 120
+    while time.time() < deadline and process.poll() is None and not (os.path.isdir(checkpoints) and os.listdir(checkpoints)):
+        time.sleep(0.005)
+    process.send_signal(signal.SIGTERM)
+    _, stderr = process.communicate(timeout=120)
+    state = yaml.safe_load(open(os.path.join(work, "runs", "signalled", "run.yaml")))
+    checks.check(process.returncode == 1 and state["status"] == "interrupted" and
+                 "SIGTERM" in state.get("reason", "") and "--resume continues" in state["reason"],
+                 f"SIGTERM: exit {process.returncode}, run.yaml {state}\n{stderr[-300:]}")
+    done_steps = max(losses(os.path.join(work, "runs", "signalled")))
+    checks.check(done_steps < 32, f"interrupted at step {done_steps}")
+    run = tinct("pretrain", signalled, "--resume")
+    checks.check(run.returncode == 0, f"resume after SIGTERM: {run.stderr[-300:]}")
+    a, b = losses(os.path.join(work, "runs", "long")), losses(os.path.join(work, "runs", "signalled"))
+    checks.check(all(a[s] == b.get(s) for s in range(1, 33)), "losses after SIGTERM and --resume equal the "
+                 "uninterrupted run's:\n" + "\n".join(f"{s}: {a[s]} vs {b.get(s)}" for s in range(1, 33)))
 
     # The ab-bin classification loss (Zhang et al. 2016) with rebalancing runs end to end.
     bins = pretrain_config(work, "bins", extra_train="")

@@ -16,7 +16,7 @@
 #include <vector>
 
 #include "pretrain/colour_loss.hpp"
-#include "pretrain/lr_schedule.hpp"
+#include "training/lr_schedule.hpp"
 #include "runs/safetensors.hpp"
 #include "temp_folder.hpp"
 #include "util/error.hpp"

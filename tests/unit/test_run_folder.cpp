@@ -1,5 +1,6 @@
 #include <catch2/catch.hpp>
 
+#include <signal.h>
 #include <sys/wait.h>
 #include <unistd.h>
 #include <yaml-cpp/yaml.h>
@@ -70,6 +71,39 @@ TEST_CASE("a second process cannot open a run that is held") {
   ::waitpid(child, &status, 0);
   CHECK(WIFEXITED(status));
   CHECK(WEXITSTATUS(status) == 3);
+}
+
+TEST_CASE("a run's lock file is removed when the run ends") {
+  TempFolder folder;
+  const auto path = folder / "ended";
+  {
+    RunFolder run(path, {});
+    CHECK(std::filesystem::exists(path / "lock"));
+  }
+  CHECK_FALSE(std::filesystem::exists(path / "lock"));
+}
+
+TEST_CASE("a lock left by a SIGKILLed run is taken over, and log.txt says so") {
+  TempFolder folder;
+  const auto path = folder / "killed";
+  const pid_t child = ::fork();
+  if (child == 0) {
+    RunFolder run(path, {});
+    run.write_status(RunStatus::running, 1);
+    ::raise(SIGKILL);  // no destructor runs: the lock file stays, the kernel drops the lock
+    ::_exit(1);
+  }
+  int status = 0;
+  ::waitpid(child, &status, 0);
+  REQUIRE(WIFSIGNALED(status));
+  REQUIRE(std::filesystem::exists(path / "lock"));
+  {
+    RunFolder resumed(path, {/*force=*/false, /*resume=*/true});
+    resumed.write_status(RunStatus::done, 1);
+  }
+  CHECK_THAT(tinct::testing::read_text(path / "log.txt"),
+             Contains("took over the lock left by process " + std::to_string(child) + ", which has ended"));
+  CHECK_FALSE(std::filesystem::exists(path / "lock"));
 }
 
 TEST_CASE("BLAS family is read from library paths") {

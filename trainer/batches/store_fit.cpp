@@ -74,8 +74,7 @@ std::vector<std::string> store_conflicts_with_run(const ConfigNode& root, const 
                                                   const fs::path& run, const ConfigNode& run_key,
                                                   const std::string& key) {
   const EncoderArtifact artifact = read_encoder_artifact(run / "encoder.pt");
-  const ModelSpec spec = model_spec_from_yaml(artifact.model_spec_yaml, (run / "encoder.pt").string());
-  std::vector<std::string> conflicts = store_conflicts(root, stores, spec.encoder);
+  std::vector<std::string> conflicts = store_conflicts(root, stores, artifact.model.encoder);
   // "init.run (line 4)" without the file name the store's own place already gives.
   std::string named_at = run_key.where(key).substr(run_key.file_name().size() + 2);
   const auto line = named_at.find(" (line ");

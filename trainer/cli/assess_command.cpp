@@ -1,7 +1,7 @@
 // tinct assess RUN --on STORE: a finetune run's model applied to any label store.
 #include "chips/store_list.hpp"
 #include "cli/commands.hpp"
-#include "finetune/assess_job.hpp"
+#include "inference/assess_job.hpp"
 
 namespace tinct {
 

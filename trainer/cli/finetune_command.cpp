@@ -10,20 +10,34 @@ namespace tinct {
 struct FinetuneCommandOptions {
   std::string config;
   bool force = false;
+  bool resume = false;
+  int stop_after = 0;
 };
+
+static void run_finetune_command(const FinetuneCommandOptions& options, const GlobalOptions& global) {
+  const ConfigNode root = ConfigNode::load(options.config);
+  root.choice("config", {"finetune"});
+  const FinetuneConfig config = read_finetune_config(root);
+  root.finish();
+  if (global.threads == 0 && config.train.threads > 0) configure_threads(config.train.threads);
+  FinetuneOptions job;
+  job.force = options.force;
+  job.resume = options.resume;
+  job.stop_after = options.stop_after;
+  job.resolved_config = resolved_text(root);
+  run_finetune(config, job);
+}
 
 CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global) {
   auto options = std::make_shared<FinetuneCommandOptions>();
   command.add_option("config", options->config, "Finetune config (YAML, config: finetune)")->required();
-  command.add_flag("--force", options->force, "Replace a finished run of the same name");
-  return [options, &global] {
-    const ConfigNode root = ConfigNode::load(options->config);
-    root.choice("config", {"finetune"});
-    const FinetuneConfig config = read_finetune_config(root);
-    root.finish();
-    if (global.threads == 0 && config.threads > 0) configure_threads(config.threads);
-    run_finetune(config, {options->force, resolved_text(root)});
-  };
+  CLI::Option* resume = command.add_flag("--resume", options->resume, "Continue the run from its last checkpoint");
+  CLI::Option* force = command.add_flag("--force", options->force, "Replace a finished run of the same name");
+  resume->excludes(force);
+  command.add_option("--stop-after", options->stop_after,
+                     "Stop after this many epochs in all (with a checkpoint); --resume continues")
+      ->check(CLI::PositiveNumber);
+  return [options, &global] { run_finetune_command(*options, global); };
 }
 
 }  // namespace tinct

@@ -68,7 +68,25 @@ SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
   return s;
 }
 
+void read_train(const ConfigNode& node, FinetuneConfig& config) {
+  config.epochs = static_cast<int>(node.integer("epochs", 50, 1));
+  config.train = read_train_settings(node, finetune_train_defaults());
+  config.patience = static_cast<int>(node.integer("patience", 10, 1));
+  node.finish();
+}
+
 }  // namespace
+
+TrainSettings finetune_train_defaults() {
+  TrainSettings t;
+  t.batch = 16;
+  t.lr = 1e-3;
+  t.weight_decay = 1e-4;
+  t.warmup = 0;
+  t.min_lr = 0;
+  t.clip_norm = 5.0;
+  return t;
+}
 
 FinetuneConfig read_finetune_config(const ConfigNode& root) {
   FinetuneConfig config;
@@ -90,18 +108,8 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   config.budget.per_class = static_cast<int>(budget.integer("per_class", 0, 0));
   config.budget.fraction = budget.number("fraction", 1.0, 1e-6, 1.0);
   budget.finish();
-  const ConfigNode train = root.section("train");
-  config.epochs = static_cast<int>(train.integer("epochs", 50, 1));
-  config.batch = static_cast<int>(train.integer("batch", 16, 1, 4096));
-  config.optimizer = train.choice("optimizer", {"adamw", "sgd"}, "adamw");
-  config.lr = train.number("lr", 1e-3, 1e-12);
-  config.weight_decay = train.number("weight_decay", 1e-4, 0.0);
-  config.seed = static_cast<std::uint64_t>(train.integer("seed", 0, 0));
-  config.augment = train.flag("augment", true);
-  config.patience = static_cast<int>(train.integer("patience", 10, 1));
-  config.threads = static_cast<int>(train.integer("threads", 0, 0, 1024));
-  train.finish();
-  config.split = read_split(root.section("split"), config.seed);
+  read_train(root.section("train"), config);
+  config.split = read_split(root.section("split"), config.train.seed);
   return config;
 }
 

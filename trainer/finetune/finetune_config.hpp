@@ -12,6 +12,7 @@
 #include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
 #include "models/model_spec.hpp"
+#include "training/train_settings.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {
@@ -37,16 +38,15 @@ struct FinetuneConfig {
   std::vector<double> explicit_weights;
   LabelBudget budget;
   SplitSettings split;
-  int epochs = 50;
-  int batch = 16;
-  std::string optimizer = "adamw";
-  double lr = 1e-3;
-  double weight_decay = 1e-4;
-  std::uint64_t seed = 0;
-  bool augment = true;
-  int patience = 10;
-  int threads = 0;  // 0: --threads, else all cores
+  // train: the shared keys (finetune_train_defaults()), plus epochs and early stopping.
+  TrainSettings train;
+  int epochs = 50;    // at most
+  int patience = 10;  // epochs without a better validation macro F1 before stopping
 };
+
+// Fine-tuning's own defaults for the shared train keys: batch 16, lr 1e-3, weight_decay
+// 1e-4, no warm-up, a cosine decay to 0 over all epochs' steps, clip_norm 5.
+TrainSettings finetune_train_defaults();
 
 FinetuneConfig read_finetune_config(const ConfigNode& root);
 

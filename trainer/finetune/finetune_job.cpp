@@ -5,11 +5,14 @@
 #include <cstdio>
 
 #include "batches/batch_loader.hpp"
-#include "finetune/classifier_predictions.hpp"
+#include "runs/checkpoint.hpp"
 #include "runs/classifier_artifact.hpp"
 #include "runs/encoder_artifact.hpp"
 #include "runs/metrics_log.hpp"
-#include "runs/run_folder.hpp"
+#include "training/lr_schedule.hpp"
+#include "training/optimizer.hpp"
+#include "training/run_lifecycle.hpp"
+#include "training/train_step.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 
@@ -18,6 +21,40 @@ namespace {
 
 const std::vector<std::string> kEpochColumns{"epoch", "loss", "lr", "encoder_frozen", "val_macro_f1",
                                              "val_accuracy"};
+constexpr int kCheckpointsKept = 2;
+
+// The labelled chips and how this run uses them.
+struct FinetuneData {
+  ChipCollection chips;
+  ClassifierArtifact artifact;  // architecture, classes, input statistics
+  LabelSplit split;
+  std::vector<ChipRef> train;   // split.train within the label budget
+  torch::Tensor class_weights;  // (K) float
+  std::int64_t steps_per_epoch = 0;
+};
+
+// The model and what updates it.
+struct Finetuning {
+  ClassifierModel model{nullptr};
+  GroupedOptimizer optimizer;
+};
+
+// Where the epoch loop is; saved in every checkpoint, so --resume continues exactly.
+struct EpochState {
+  std::int64_t step = 0;   // steps done
+  int epochs_done = 0;     // epochs trained and validated
+  double loss_sum = 0;     // training loss of the epoch in progress
+  double best_f1 = -1;
+  int best_epoch = 0;      // 1-based; model.pt holds its weights
+  bool stopped_early = false;
+};
+
+struct EpochScore {
+  double macro_f1 = 0;
+  double accuracy = 0;
+};
+
+// ---- prepare split
 
 // The architecture and input statistics: from the pretrain run, or the config.
 ClassifierArtifact describe_classifier(const FinetuneConfig& c, ChipCollection& chips) {
@@ -35,7 +72,7 @@ ClassifierArtifact describe_classifier(const FinetuneConfig& c, ChipCollection& 
                  "chips.size " + std::to_string(encoder.chip_size));
     }
     chips.use_normalisation(encoder.normalisation);
-    artifact.spec.model = model_spec_from_yaml(encoder.model_spec_yaml, c.init.pretrain_run.string());
+    artifact.spec.model = encoder.model;
   } else {
     artifact.spec.model = c.init.model;
   }
@@ -60,26 +97,81 @@ torch::Tensor class_weights(const FinetuneConfig& c, const ChipCollection& chips
   return torch::tensor(weights);
 }
 
-// Two groups, so the encoder can learn at encoder_lr_scale times the head's rate.
-std::unique_ptr<torch::optim::Optimizer> make_optimizer(ClassifierModel& model, const FinetuneConfig& c) {
-  const double encoder_lr = c.lr * c.encoder_lr_scale;
-  std::vector<torch::optim::OptimizerParamGroup> groups;
-  if (c.optimizer == "sgd") {
-    const auto options = [&](double lr) {
-      return std::make_unique<torch::optim::SGDOptions>(
-          torch::optim::SGDOptions(lr).momentum(0.9).weight_decay(c.weight_decay));
-    };
-    groups.emplace_back(model->encoder->parameters(), options(encoder_lr));
-    groups.emplace_back(model->head->parameters(), options(c.lr));
-    return std::make_unique<torch::optim::SGD>(groups, torch::optim::SGDOptions(c.lr));
-  }
-  const auto options = [&](double lr) {
-    return std::make_unique<torch::optim::AdamWOptions>(torch::optim::AdamWOptions(lr).weight_decay(c.weight_decay));
-  };
-  groups.emplace_back(model->encoder->parameters(), options(encoder_lr));
-  groups.emplace_back(model->head->parameters(), options(c.lr));
-  return std::make_unique<torch::optim::AdamW>(groups, torch::optim::AdamWOptions(c.lr));
+void log_split(const LabelSplit& split, std::size_t budgeted) {
+  log::info("finetune: " + std::to_string(split.units) + " split units; " + std::to_string(budgeted) +
+            " training chips (of " + std::to_string(split.train.size()) + " before the budget), " +
+            std::to_string(split.validation.size()) + " validation, " + std::to_string(split.test.size()) +
+            " test" + (split.dropped_by_buffer ? ", " + std::to_string(split.dropped_by_buffer) +
+                                                    " dropped within the buffer" : std::string()));
 }
+
+FinetuneData prepare_split(const FinetuneConfig& c) {
+  FinetuneData data{ChipCollection(c.stores), {}, {}, {}, {}, 0};
+  data.artifact = describe_classifier(c, data.chips);
+  data.split = split_labels(data.chips, c.split);
+  data.train = apply_budget(data.chips, data.split.train, c.budget, c.train.seed);
+  log_split(data.split, data.train.size());
+  data.class_weights = class_weights(c, data.chips, data.train);
+  const auto chips = static_cast<std::int64_t>(data.train.size());
+  data.steps_per_epoch = std::max<std::int64_t>(1, (chips + c.train.batch - 1) / c.train.batch);
+  return data;
+}
+
+// ---- build model
+
+Finetuning build_model(const FinetuneConfig& c, const FinetuneData& data) {
+  torch::manual_seed(c.train.seed);
+  Finetuning f;
+  f.model = ClassifierModel(data.artifact.spec);
+  if (c.init.pretrained) load_encoder_weights(c.init.pretrain_run / "encoder.pt", *f.model->encoder);
+  // Two groups, so the encoder can learn at encoder_lr_scale times the head's rate.
+  f.optimizer = make_optimizer({{f.model->encoder->parameters(), c.encoder_lr_scale}, {f.model->head->parameters(), 1.0}},
+                               c.train);
+  return f;
+}
+
+// ---- checkpoints
+
+void save_state(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const EpochState& state,
+                const MetricsLog& metrics) {
+  if (!run.is_writer()) return;
+  const auto folder = run.folder().file("checkpoints");
+  CheckpointInfo info{state.step, model_spec_yaml(data.artifact.spec.model), run.config_hash(), {}};
+  info.loop_state = {{"epochs_done", static_cast<double>(state.epochs_done)},
+                     {"loss_sum", state.loss_sum},
+                     {"best_f1", state.best_f1},
+                     {"best_epoch", static_cast<double>(state.best_epoch)},
+                     {"stopped_early", state.stopped_early ? 1.0 : 0.0}};
+  save_checkpoint(checkpoint_path(folder, state.step), *f.model, *f.optimizer.optimizer, info);
+  prune_checkpoints(folder, kCheckpointsKept);
+  metrics.flush();
+}
+
+EpochState restore(RunLifecycle& run, Finetuning& f, const FinetuneData& data) {
+  const auto last = latest_checkpoint(run.folder().file("checkpoints"));
+  if (!last) fail_usage("--resume: " + run.folder().path().string() + " holds no checkpoint to continue from");
+  if (read_checkpoint_info(*last).model_spec_yaml != model_spec_yaml(data.artifact.spec.model)) {
+    fail_usage("--resume: the model differs from the run's; continue with the same config and pretrain run");
+  }
+  const CheckpointInfo info = load_checkpoint(*last, *f.model, *f.optimizer.optimizer);
+  const auto value = [&](const char* key) {
+    const auto found = info.loop_state.find(key);
+    if (found == info.loop_state.end()) fail_runtime(last->string() + ": not a finetune checkpoint (no " + key + ")");
+    return found->second;
+  };
+  EpochState state;
+  state.step = info.step;
+  state.epochs_done = static_cast<int>(value("epochs_done"));
+  state.loss_sum = value("loss_sum");
+  state.best_f1 = value("best_f1");
+  state.best_epoch = static_cast<int>(value("best_epoch"));
+  state.stopped_early = value("stopped_early") != 0;
+  log::info("finetune: resuming from " + last->string() + " (step " + std::to_string(state.step) + ", " +
+            std::to_string(state.epochs_done) + " epochs done)");
+  return state;
+}
+
+// ---- train epochs
 
 bool encoder_frozen(const FinetuneConfig& c, int epoch) {
   return c.freeze == FreezePolicy::frozen || (c.freeze == FreezePolicy::unfreeze_after && epoch < c.unfreeze_epoch);
@@ -89,95 +181,130 @@ void set_frozen(ClassifierModel& model, bool frozen) {
   for (auto& parameter : model->encoder->parameters()) parameter.set_requires_grad(!frozen);
 }
 
+// Training mode, but a frozen encoder keeps its normalisation statistics too.
+void train_mode(ClassifierModel& model, bool frozen) {
+  model->train();
+  if (frozen) model->encoder->eval();
+}
+
 std::string format(const char* pattern, double value) {
   char text[64];
   std::snprintf(text, sizeof(text), pattern, value);
   return text;
 }
 
-void log_split(const LabelSplit& split, std::size_t budgeted) {
-  log::info("finetune: " + std::to_string(split.units) + " split units; " + std::to_string(budgeted) +
-            " training chips (of " + std::to_string(split.train.size()) + " before the budget), " +
-            std::to_string(split.validation.size()) + " validation, " + std::to_string(split.test.size()) +
-            " test" + (split.dropped_by_buffer ? ", " + std::to_string(split.dropped_by_buffer) +
-                                                    " dropped within the buffer" : std::string()));
+EpochScore validate(ClassifierModel& model, const FinetuneData& data, const FinetuneConfig& c) {
+  const Predictions validation = predict_chips(model, data.chips, data.split.validation, c.train.batch);
+  std::int64_t correct = 0;
+  for (std::size_t i = 0; i < validation.truth.size(); ++i) correct += validation.truth[i] == validation.predicted[i];
+  return {macro_f1_of(validation, static_cast<int>(data.artifact.classes.size())),
+          static_cast<double>(correct) / static_cast<double>(validation.truth.size())};
+}
+
+// Keeps model.pt at the best epoch; true when `patience` epochs have passed without a better one.
+bool early_stop(EpochState& state, const EpochScore& score, int epoch, RunLifecycle& run, Finetuning& f,
+                const FinetuneData& data, const FinetuneConfig& c) {
+  if (score.macro_f1 > state.best_f1) {
+    state.best_f1 = score.macro_f1;
+    state.best_epoch = epoch + 1;
+    if (run.is_writer()) save_classifier(run.folder().file("model.pt"), f.model, data.artifact);
+    return false;
+  }
+  if (epoch + 1 - state.best_epoch < c.patience) return false;
+  log::info("finetune: no better validation macro F1 for " + std::to_string(c.patience) + " epochs; stopping");
+  return true;
+}
+
+RunOutcome train_epochs(Finetuning& f, EpochState& state, const FinetuneData& data, const FinetuneConfig& c,
+                        RunLifecycle& run, int stop_after) {
+  const std::int64_t per_epoch = data.steps_per_epoch;
+  const LearningRateSchedule schedule = warmup_cosine(c.train, c.epochs * per_epoch);
+  BatchLoader loader(data.chips, data.train, {c.train.batch, c.train.seed, c.train.augment, state.step});
+  TrainStep train_step(*f.model, *f.optimizer.optimizer, c.train.clip_norm);
+  const auto cross_entropy_options = torch::nn::functional::CrossEntropyFuncOptions().weight(data.class_weights);
+  MetricsLog metrics(run.folder().file("metrics.csv"), kEpochColumns);
+  if (state.epochs_done > 0 || state.step > 0) metrics.resume(state.epochs_done);
+  const int last_epoch = stop_after > 0 ? std::min(stop_after, c.epochs) : c.epochs;
+  double lr = schedule.at(std::max<std::int64_t>(0, state.step - 1));  // the rate of the last step done
+
+  for (int epoch = state.epochs_done; epoch < last_epoch && !state.stopped_early; ++epoch) {
+    const bool frozen = encoder_frozen(c, epoch);
+    set_frozen(f.model, frozen);
+    for (std::int64_t step = state.step; step < (epoch + 1) * per_epoch; ++step) {
+      const Batch batch = loader.next();
+      lr = schedule.at(step);
+      f.optimizer.set_learning_rate(lr);
+      train_mode(f.model, frozen);
+      const StepResult result = train_step.run([&] {
+        const torch::Tensor logits = f.model->forward(batch.bands);  // (B, bands, H, W) -> (B, classes)
+        return torch::nn::functional::cross_entropy(logits, batch.labels, cross_entropy_options);
+      });
+      if (!result.finite) {
+        fail_non_finite("finetune", "step " + std::to_string(step + 1) + " (epoch " + std::to_string(epoch + 1) + ")",
+                        run.folder().file("checkpoints"));
+      }
+      state.loss_sum += result.loss;
+      state.step = step + 1;
+      if (run.stop_requested()) {
+        save_state(run, f, data, state, metrics);
+        return run.interrupted_after("step " + std::to_string(state.step) + " (epoch " + std::to_string(epoch + 1) + ")");
+      }
+    }
+
+    const EpochScore score = validate(f.model, data, c);
+    const double mean_loss = state.loss_sum / static_cast<double>(per_epoch);
+    metrics.add({std::to_string(epoch + 1), metric_text(mean_loss), metric_text(lr), frozen ? "1" : "0",
+                 metric_text(score.macro_f1), metric_text(score.accuracy)});
+    log::info("epoch " + std::to_string(epoch + 1) + ": loss " + format("%.4f", mean_loss) +
+              ", validation macro F1 " + format("%.3f", score.macro_f1));
+    state.stopped_early = early_stop(state, score, epoch, run, f, data, c);
+    state.epochs_done = epoch + 1;
+    state.loss_sum = 0;
+    save_state(run, f, data, state, metrics);
+    if (run.stop_requested()) return run.interrupted_after("epoch " + std::to_string(epoch + 1));
+  }
+  if (!state.stopped_early && state.epochs_done < c.epochs) {
+    return {RunStatus::stopped, "stopped after epoch " + std::to_string(state.epochs_done) + "; --resume continues"};
+  }
+  return {};
+}
+
+// ---- reload best, test, write
+
+FinetuneResult test_best(RunLifecycle& run, const FinetuneData& data, const EpochState& state,
+                         const FinetuneConfig& c) {
+  ClassifierArtifact best;
+  ClassifierModel chosen = load_classifier(run.folder().file("model.pt"), best);
+  FinetuneResult result;
+  result.best_epoch = state.best_epoch;
+  result.epochs_run = state.epochs_done;
+  result.best_validation_macro_f1 = state.best_f1;
+  result.test = predict_chips(chosen, data.chips, data.split.test, c.train.batch);
+  result.metrics = write_assessment(run.folder().path(), result.test, data.chips, data.artifact.classes);
+  log::info("finetune: best epoch " + std::to_string(state.best_epoch) + "; test macro F1 " +
+            format("%.3f", result.metrics.macro_f1) + " on " + std::to_string(data.split.test.size()) +
+            " chips of fold " + std::to_string(c.split.fold));
+  return result;
 }
 
 }  // namespace
 
-FinetuneSummary run_finetune(const FinetuneConfig& c, const FinetuneOptions& options) {
-  RunFolder run(c.output, {options.force, false});
-  run.write_config(options.resolved_config);
-  run.write_status(RunStatus::running, static_cast<std::int64_t>(c.seed));
-  try {
-    ChipCollection chips(c.stores);
-    const ClassifierArtifact artifact = describe_classifier(c, chips);
-    torch::manual_seed(c.seed);
-    ClassifierModel model(artifact.spec);
-    if (c.init.pretrained) load_encoder_weights(c.init.pretrain_run / "encoder.pt", *model->encoder);
-    const LabelSplit split = split_labels(chips, c.split);
-    const std::vector<ChipRef> train = apply_budget(chips, split.train, c.budget, c.seed);
-    log_split(split, train.size());
-    const torch::Tensor weights = class_weights(c, chips, train);
-    auto optimizer = make_optimizer(model, c);
-    BatchLoader loader(chips, train, {c.batch, c.seed, c.augment, 0});
-    const std::int64_t steps_per_epoch = std::max<std::int64_t>(1, (static_cast<std::int64_t>(train.size()) + c.batch - 1) / c.batch);
-    MetricsLog metrics(run.file("metrics.csv"), kEpochColumns);
-    const int classes = static_cast<int>(artifact.classes.size());
-    double best_f1 = -1;
-    int best_epoch = 0;
-
-    for (int epoch = 0; epoch < c.epochs; ++epoch) {
-      const bool frozen = encoder_frozen(c, epoch);
-      set_frozen(model, frozen);
-      double loss_sum = 0;
-      for (std::int64_t s = 0; s < steps_per_epoch; ++s) {
-        const Batch batch = loader.next();
-        model->train();
-        if (frozen) model->encoder->eval();  // a frozen encoder keeps its normalisation statistics too
-
-        const torch::Tensor logits = model->forward(batch.bands);  // (B, classes)
-        const torch::Tensor loss = torch::nn::functional::cross_entropy(
-            logits, batch.labels, torch::nn::functional::CrossEntropyFuncOptions().weight(weights));
-        if (!std::isfinite(loss.item<double>())) {
-          fail_runtime("finetune: the loss is not finite in epoch " + std::to_string(epoch + 1) +
-                       "; lower train.lr");
-        }
-        optimizer->zero_grad();
-        loss.backward();
-        optimizer->step();
-        loss_sum += loss.item<double>();
-      }
-      const Predictions validation = predict_chips(model, chips, split.validation, c.batch);
-      const double f1 = macro_f1_of(validation, classes);
-      std::int64_t correct = 0;
-      for (std::size_t i = 0; i < validation.truth.size(); ++i) correct += validation.truth[i] == validation.predicted[i];
-      metrics.add({std::to_string(epoch + 1), metric_text(loss_sum / steps_per_epoch), metric_text(c.lr),
-                   frozen ? "1" : "0", metric_text(f1), metric_text(double(correct) / validation.truth.size())});
-      log::info("epoch " + std::to_string(epoch + 1) + ": loss " + format("%.4f", loss_sum / steps_per_epoch) +
-                ", validation macro F1 " + format("%.3f", f1));
-      if (f1 > best_f1) {
-        best_f1 = f1;
-        best_epoch = epoch + 1;
-        save_classifier(run.file("model.pt"), model, artifact);
-      } else if (epoch + 1 - best_epoch >= c.patience) {
-        log::info("finetune: no better validation macro F1 for " + std::to_string(c.patience) + " epochs; stopping");
-        break;
-      }
+FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& options) {
+  RunLifecycle run({"finetune", c.output, options.force, options.resume, options.resolved_config, c.train.seed});
+  FinetuneResult result;
+  run.execute([&] {
+    const FinetuneData data = prepare_split(c);
+    Finetuning model = build_model(c, data);
+    EpochState state = options.resume ? restore(run, model, data) : EpochState{};
+    const RunOutcome outcome = train_epochs(model, state, data, c, run, options.stop_after);
+    if (outcome.status != RunStatus::done) {
+      result.status = outcome.status;
+      return outcome;
     }
-    metrics.flush();
-    ClassifierArtifact best;
-    ClassifierModel chosen = load_classifier(run.file("model.pt"), best);
-    const double test_f1 = write_assessment(run.path(), predict_chips(chosen, chips, split.test, c.batch), chips,
-                                            artifact.classes);
-    log::info("finetune: best epoch " + std::to_string(best_epoch) + "; test macro F1 " + format("%.3f", test_f1) +
-              " on " + std::to_string(split.test.size()) + " chips of fold " + std::to_string(c.split.fold));
-    run.write_status(RunStatus::done, static_cast<std::int64_t>(c.seed));
-    return {test_f1, best_epoch};
-  } catch (...) {
-    run.write_status(RunStatus::failed, static_cast<std::int64_t>(c.seed));
-    throw;
-  }
+    result = test_best(run, data, state, c);
+    return outcome;
+  });
+  return result;
 }
 
 }  // namespace tinct

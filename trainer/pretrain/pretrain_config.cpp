@@ -26,24 +26,12 @@ ColourLossSettings read_loss(const ConfigNode& node) {
   return loss;
 }
 
-TrainSettings read_train(const ConfigNode& node) {
-  TrainSettings t;
-  t.steps = node.integer("steps", 0, 0);
-  t.epochs = node.number("epochs", 10.0, 1e-6);
-  t.batch = static_cast<int>(node.integer("batch", 32, 1, 65536));
-  t.optimizer = node.choice("optimizer", {"adamw", "sgd"}, "adamw");
-  t.lr = node.number("lr", 2e-3, 1e-12);
-  t.min_lr = node.number("min_lr", 0.0, 0.0);
-  t.weight_decay = node.number("weight_decay", 1e-2, 0.0);
-  t.momentum = node.number("momentum", 0.9, 0.0, 1.0);
-  t.warmup = node.integer("warmup", 100, 0);
-  t.clip_norm = node.number("clip_norm", 1.0, 0.0);
-  t.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
-  t.augment = node.flag("augment", true);
-  t.log_every = static_cast<int>(node.integer("log_every", 10, 1));
-  t.threads = static_cast<int>(node.integer("threads", 0, 0, 1024));
+void read_train(const ConfigNode& node, PretrainConfig& config) {
+  config.steps = node.integer("steps", 0, 0);
+  config.epochs = node.number("epochs", 10.0, 1e-6);
+  config.train = read_train_settings(node, TrainSettings{});  // the struct's defaults are pretrain's
+  config.log_every = static_cast<int>(node.integer("log_every", 10, 1));
   node.finish();
-  return t;
 }
 
 ValidationSettings read_validation(const ConfigNode& node) {
@@ -83,7 +71,7 @@ PretrainConfig read_pretrain_config(const ConfigNode& root) {
     config.model.decoder.ab_bins_per_axis = config.loss.ab_bins_per_axis;
   }
   require_no_conflicts(store_conflicts(root, config.stores, config.model.encoder));
-  config.train = read_train(root.section("train"));
+  read_train(root.section("train"), config);
   config.validation = read_validation(root.section("validation"));
   config.checkpoints = read_checkpoints(root.section("checkpoints"));
   return config;

@@ -10,26 +10,10 @@
 
 #include "models/model_spec.hpp"
 #include "pretrain/colour_loss_settings.hpp"
+#include "training/train_settings.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {
-
-struct TrainSettings {
-  std::int64_t steps = 0;   // 0: derived from epochs
-  double epochs = 10;
-  int batch = 32;
-  std::string optimizer = "adamw";  // adamw | sgd
-  double lr = 2e-3;
-  double min_lr = 0;
-  double weight_decay = 1e-2;
-  double momentum = 0.9;     // sgd
-  std::int64_t warmup = 100; // steps
-  double clip_norm = 1.0;    // 0 = off
-  std::uint64_t seed = 0;
-  bool augment = true;
-  int log_every = 10;
-  int threads = 0;           // 0: --threads, else all cores
-};
 
 struct ValidationSettings {
   double fraction = 0.2;     // of the spatial blocks
@@ -48,7 +32,11 @@ struct PretrainConfig {
   std::filesystem::path output;
   ModelSpec model;
   ColourLossSettings loss;
-  TrainSettings train;
+  // train: the shared keys, plus how long and how often to log.
+  TrainSettings train;       // defaults: batch 32, lr 2e-3, weight_decay 1e-2, warmup 100, clip_norm 1
+  std::int64_t steps = 0;    // train.steps; 0: from train.epochs
+  double epochs = 10;        // train.epochs over the training chips, when steps is 0
+  int log_every = 10;        // train.log_every: steps between metrics rows
   ValidationSettings validation;
   CheckpointSettings checkpoints;
 };

@@ -1,6 +1,6 @@
-// The whole of `tinct pretrain`: opens the run folder, the stores and the split,
-// builds the model and optimiser (or restores them with --resume), and runs the
-// training loop with its validation, preview and checkpoint blocks.
+// The whole of `tinct pretrain`: opens the run (training/run_lifecycle), the stores and
+// the split, builds the model and optimiser (or restores them with --resume), and runs
+// the training loop with its validation, preview and checkpoint blocks.
 #pragma once
 
 #include <cstdint>
@@ -17,6 +17,7 @@ struct PretrainOptions {
   std::string resolved_config;  // the config with every default, saved into the run
 };
 
+// Fails (runtime) when interrupted by SIGINT or SIGTERM, after writing a checkpoint.
 void run_pretrain(const PretrainConfig& config, const PretrainOptions& options);
 
 }  // namespace tinct

@@ -6,8 +6,8 @@
 #include <cstdio>
 #include <vector>
 
-#include "util/atomic_file.hpp"
-#include "util/error.hpp"
+#include "runs/model_archive.hpp"
+#include "util/text_lines.hpp"
 
 namespace fs = std::filesystem;
 
@@ -30,10 +30,19 @@ std::vector<fs::path> checkpoints_in(const fs::path& folder) {
   return files;
 }
 
-std::string read_text(torch::serialize::InputArchive& archive, const std::string& key) {
-  c10::IValue value;
-  archive.read(key, value);
-  return value.toStringRef();
+CheckpointInfo info_of(ArchiveReader& archive) {
+  CheckpointInfo info;
+  info.step = archive.integer("step");
+  info.model_spec_yaml = archive.text("model_spec");
+  info.config_hash = archive.text("config_hash");
+  if (archive.has("loop_state")) {
+    const auto names = split_lines(archive.text("loop_state_names"));
+    const torch::Tensor values = archive.tensor("loop_state").to(torch::kFloat64).contiguous();
+    for (std::size_t i = 0; i < names.size() && static_cast<std::int64_t>(i) < values.numel(); ++i) {
+      info.loop_state[names[i]] = values.data_ptr<double>()[i];
+    }
+  }
+  return info;
 }
 
 }  // namespace
@@ -46,45 +55,37 @@ fs::path checkpoint_path(const fs::path& folder, std::int64_t step) {
 
 void save_checkpoint(const fs::path& file, const torch::nn::Module& model, const torch::optim::Optimizer& optimizer,
                      const CheckpointInfo& info) {
-  torch::serialize::OutputArchive archive;
-  torch::serialize::OutputArchive model_archive, optimizer_archive;
-  model.save(model_archive);
-  optimizer.save(optimizer_archive);
-  archive.write("model", model_archive);
-  archive.write("optimizer", optimizer_archive);
-  archive.write("step", c10::IValue(info.step));
-  archive.write("model_spec", c10::IValue(info.model_spec_yaml));
-  archive.write("config_hash", c10::IValue(info.config_hash));
-  fs::create_directories(file.parent_path());
-  const fs::path temporary = temporary_sibling(file);
-  archive.save_to(temporary.string());
-  commit_file(temporary, file);
+  ArchiveWriter archive(ArchiveKind::checkpoint);
+  archive.module("model", model);
+  archive.optimizer("optimizer", optimizer);
+  archive.integer("step", info.step);
+  archive.text("model_spec", info.model_spec_yaml);
+  archive.text("config_hash", info.config_hash);
+  if (!info.loop_state.empty()) {
+    std::vector<std::string> names;
+    std::vector<double> values;
+    for (const auto& [name, value] : info.loop_state) {
+      names.push_back(name);
+      values.push_back(value);
+    }
+    archive.text("loop_state_names", join_lines(names));
+    archive.tensor("loop_state", torch::tensor(values, torch::kFloat64));
+  }
+  archive.random_state();
+  archive.save(file);
 }
 
 CheckpointInfo read_checkpoint_info(const fs::path& file) {
-  torch::serialize::InputArchive archive;
-  try {
-    archive.load_from(file.string());
-  } catch (const c10::Error& e) {
-    fail_runtime(file.string() + ": not a readable tinct checkpoint (" + e.what_without_backtrace() + ")");
-  }
-  CheckpointInfo info;
-  c10::IValue step;
-  archive.read("step", step);
-  info.step = step.toInt();
-  info.model_spec_yaml = read_text(archive, "model_spec");
-  info.config_hash = read_text(archive, "config_hash");
-  return info;
+  ArchiveReader archive(file, ArchiveKind::checkpoint);
+  return info_of(archive);
 }
 
 CheckpointInfo load_checkpoint(const fs::path& file, torch::nn::Module& model, torch::optim::Optimizer& optimizer) {
-  const CheckpointInfo info = read_checkpoint_info(file);
-  torch::serialize::InputArchive archive, model_archive, optimizer_archive;
-  archive.load_from(file.string());
-  archive.read("model", model_archive);
-  archive.read("optimizer", optimizer_archive);
-  model.load(model_archive);
-  optimizer.load(optimizer_archive);
+  ArchiveReader archive(file, ArchiveKind::checkpoint);
+  const CheckpointInfo info = info_of(archive);
+  archive.module("model", model);
+  archive.optimizer("optimizer", optimizer);
+  archive.restore_random_state();
   return info;
 }
 

@@ -1,10 +1,13 @@
-// Training checkpoints: model weights, optimiser state and the step, in one
-// LibTorch archive written to a temporary name and renamed, so a kill mid-write
-// leaves the previous checkpoint intact. The last K are kept.
+// Training checkpoints: model weights, optimiser state, the step, the loop's own
+// counters (e.g. fine-tuning's best score) and the random generator's state, in one
+// model archive (model_archive.hpp, kind checkpoint, versioned) written to a temporary
+// name and renamed, so a kill mid-write leaves the previous checkpoint intact.
+// The last K are kept.
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
+#include <map>
 #include <optional>
 #include <string>
 
@@ -23,14 +26,17 @@ struct CheckpointInfo {
   std::int64_t step = 0;        // steps completed
   std::string model_spec_yaml;  // the architecture, to rebuild the model
   std::string config_hash;
+  std::map<std::string, double> loop_state;  // the loop's counters, exact as doubles
 };
 
 // checkpoints/step-00001200.pt
 std::filesystem::path checkpoint_path(const std::filesystem::path& folder, std::int64_t step);
 
+// Also saves the default CPU generator's state (dropout, random init).
 void save_checkpoint(const std::filesystem::path& file, const torch::nn::Module& model,
                      const torch::optim::Optimizer& optimizer, const CheckpointInfo& info);
-// Loads weights and optimiser state into the given (already built) objects.
+// Loads weights, optimiser state and the generator state into the given (already built)
+// objects. Fails (runtime) on a checkpoint of a newer format or one that does not fit.
 CheckpointInfo load_checkpoint(const std::filesystem::path& file, torch::nn::Module& model,
                                torch::optim::Optimizer& optimizer);
 // Reads only the info (to rebuild the model before loading).

@@ -1,6 +1,7 @@
 // model.pt of a fine-tuning run: the classifier's weights (encoder + head), its
 // architecture, the class list, and the band list and statistics inputs must be
-// normalised with. `assess` and `map` need nothing else.
+// normalised with (a model archive of kind classifier). `assess` and `map` need
+// nothing else.
 #pragma once
 
 #include <filesystem>
@@ -8,7 +9,7 @@
 #include <vector>
 
 #include "batches/chip_collection.hpp"
-#include "finetune/classifier_model.hpp"
+#include "models/classifier_model.hpp"
 
 namespace tinct {
 
@@ -21,7 +22,8 @@ struct ClassifierArtifact {
 
 void save_classifier(const std::filesystem::path& file, const ClassifierModel& model,
                      const ClassifierArtifact& artifact);
-// Rebuilds the model from the file's description and loads its weights.
+// Rebuilds the model from the file's description and loads its weights. Fails (usage)
+// when `file` is missing or not a model.pt.
 ClassifierModel load_classifier(const std::filesystem::path& file, ClassifierArtifact& artifact);
 
 }  // namespace tinct

@@ -1,6 +1,6 @@
 // encoder.pt: what fine-tuning, maps and export need of a pretraining run: the
 // encoder's weights, its architecture, the band list in order, the chip size and
-// the band statistics the inputs were normalised with.
+// the band statistics the inputs were normalised with (a model archive of kind encoder).
 #pragma once
 
 #include <filesystem>
@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "batches/chip_collection.hpp"
+#include "models/model_spec.hpp"
 
 namespace torch::nn {
 class Module;
@@ -16,14 +17,14 @@ class Module;
 namespace tinct {
 
 struct EncoderArtifact {
-  std::string model_spec_yaml;
+  ModelSpec model;  // the encoder part is used; the decoder's is kept for reference
   BandNormalisation normalisation;
   int chip_size = 0;
 };
 
 void save_encoder(const std::filesystem::path& file, const torch::nn::Module& encoder,
                   const EncoderArtifact& artifact);
-// Reads the description only.
+// Reads the description only. Fails (usage) when `file` is not an encoder.pt.
 EncoderArtifact read_encoder_artifact(const std::filesystem::path& file);
 // Loads the weights into an encoder built from the artifact's spec.
 void load_encoder_weights(const std::filesystem::path& file, torch::nn::Module& encoder);

@@ -39,8 +39,7 @@ int export_encoder(const fs::path& run, const fs::path& out) {
     fail_usage(file.string() + " not found; give a finished pretrain run folder (it holds encoder.pt)");
   }
   const EncoderArtifact artifact = read_encoder_artifact(file);
-  const ModelSpec spec = model_spec_from_yaml(artifact.model_spec_yaml, file.string());
-  const auto encoder = make_encoder(spec.encoder);
+  const auto encoder = make_encoder(artifact.model.encoder);
   load_encoder_weights(file, *encoder);
   std::vector<std::pair<std::string, torch::Tensor>> tensors;
   for (const auto& item : encoder->named_parameters()) tensors.emplace_back(item.key(), item.value().detach());
@@ -51,7 +50,7 @@ int export_encoder(const fs::path& run, const fs::path& out) {
       {"band_mean", joined(artifact.normalisation.mean)},
       {"band_std", joined(artifact.normalisation.std)},
       {"chip_size", std::to_string(artifact.chip_size)},
-      {"model_spec", artifact.model_spec_yaml},
+      {"model_spec", model_spec_yaml(artifact.model)},
       {"normalisation", "(reflectance - band_mean) / band_std per band; invalid pixels 0"}};
   write_safetensors(out, tensors, metadata);
   return static_cast<int>(tensors.size());

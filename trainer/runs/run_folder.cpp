@@ -1,9 +1,5 @@
 #include "runs/run_folder.hpp"
 
-#include <fcntl.h>
-#include <sys/file.h>
-#include <unistd.h>
-
 #include <yaml-cpp/yaml.h>
 
 #include <chrono>
@@ -32,21 +28,6 @@ std::string utc_now() {
   return text;
 }
 
-int take_lock(const fs::path& lock_path, const fs::path& run) {
-  const int fd = ::open(lock_path.c_str(), O_CREAT | O_RDWR | O_CLOEXEC, 0644);
-  if (fd < 0) fail_runtime("cannot create " + lock_path.string() + "; check that the folder is writable");
-  if (::flock(fd, LOCK_EX | LOCK_NB) != 0) {
-    ::close(fd);
-    fail_runtime("run " + run.string() + " is in use by another tinct process; wait for it to "
-                 "finish or choose another run name");
-  }
-  const std::string pid = std::to_string(::getpid()) + "\n";
-  if (::ftruncate(fd, 0) == 0) {
-    [[maybe_unused]] const ssize_t written = ::write(fd, pid.data(), pid.size());
-  }
-  return fd;
-}
-
 void clear_folder(const fs::path& folder, const fs::path& keep) {
   for (const auto& entry : fs::directory_iterator(folder)) {
     if (entry.path() != keep) fs::remove_all(entry.path());
@@ -60,6 +41,7 @@ std::string to_string(RunStatus status) {
     case RunStatus::running: return "running";
     case RunStatus::done: return "done";
     case RunStatus::stopped: return "stopped";
+    case RunStatus::interrupted: return "interrupted";
     case RunStatus::failed: return "failed";
   }
   return "unknown";
@@ -76,33 +58,33 @@ std::string RunFolder::recorded_status(const fs::path& run_path) {
   }
 }
 
-RunFolder::RunFolder(fs::path path, RunOpening opening) : path_(std::move(path)) {
+fs::path RunFolder::created(const fs::path& path) {
   std::error_code ec;
-  fs::create_directories(path_, ec);
-  if (ec) fail_runtime("cannot create run folder " + path_.string() + ": " + ec.message());
-  const fs::path lock_path = path_ / "lock";
-  lock_fd_ = take_lock(lock_path, path_);
+  fs::create_directories(path, ec);
+  if (ec) fail_runtime("cannot create run folder " + path.string() + ": " + ec.message());
+  return path;
+}
+
+RunFolder::RunFolder(fs::path path, RunOpening opening)
+    : path_(created(path)), lock_(path_, path_ / "lock", "wait for it to finish or choose another run name") {
   const std::string status = recorded_status(path_);
   if (!status.empty() && !opening.force && !opening.resume) {
-    ::close(lock_fd_);
     fail_usage("run " + path_.string() + " exists (status: " + status +
                "); pass --resume to continue it or --force to start it over");
   }
-  if (opening.force && !opening.resume) clear_folder(path_, lock_path);
+  if (opening.force && !opening.resume) clear_folder(path_, lock_.lock_file());
   log::set_file(path_ / "log.txt");
+  if (lock_.stale_holder() != 0) {
+    log::write_file_only(log::Level::info, "took over the lock left by process " +
+                                               std::to_string(lock_.stale_holder()) + ", which has ended");
+  }
   if (blas_in_use().is_reference()) {
     log::warning("LibTorch is using the reference BLAS (about 30x slower matrix products); "
                  "install libopenblas0-pthread (scripts/setup.sh does)");
   }
 }
 
-RunFolder::~RunFolder() {
-  log::close_file();
-  if (lock_fd_ >= 0) {
-    ::flock(lock_fd_, LOCK_UN);
-    ::close(lock_fd_);
-  }
-}
+RunFolder::~RunFolder() { log::close_file(); }  // then lock_ removes the lock file
 
 std::string RunFolder::write_config(const std::string& resolved_yaml) {
   write_file_atomic(file("config.resolved.yaml"), resolved_yaml);
@@ -110,12 +92,13 @@ std::string RunFolder::write_config(const std::string& resolved_yaml) {
   return config_hash_;
 }
 
-void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::string& note) {
+void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::string& reason) {
   if (started_.empty()) started_ = utc_now();
   const BlasInUse blas = blas_in_use();
   YAML::Emitter out;
   out << YAML::BeginMap;
   out << YAML::Key << "status" << YAML::Value << to_string(status);
+  if (!reason.empty()) out << YAML::Key << "reason" << YAML::Value << reason;
   out << YAML::Key << "started" << YAML::Value << started_;
   out << YAML::Key << "ended" << YAML::Value << (status == RunStatus::running ? "" : utc_now());
   out << YAML::Key << "versions" << YAML::Value << YAML::BeginMap;
@@ -131,7 +114,6 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
   out << YAML::EndMap;
   out << YAML::Key << "seed" << YAML::Value << seed;
   out << YAML::Key << "config_hash" << YAML::Value << config_hash_;
-  if (!note.empty()) out << YAML::Key << "note" << YAML::Value << note;
   out << YAML::EndMap;
   write_file_atomic(file("run.yaml"), std::string(out.c_str()) + "\n");
 }

@@ -1,9 +1,9 @@
-#include "finetune/classifier_predictions.hpp"
+#include "inference/classifier_predictions.hpp"
 
 #include <algorithm>
 
-#include "assess/classification_metrics.hpp"
 #include "batches/batch.hpp"
+#include "models/classifier_model.hpp"
 #include "runs/metrics_log.hpp"
 #include "util/atomic_file.hpp"
 #include "util/csv_field.hpp"
@@ -56,15 +56,15 @@ double macro_f1_of(const Predictions& predictions, int classes) {
   return classification_metrics(predictions.truth, predictions.predicted, classes).macro_f1;
 }
 
-double write_assessment(const std::filesystem::path& folder, const Predictions& predictions,
-                        const ChipCollection& collection, const std::vector<std::string>& classes) {
+ClassificationMetrics write_assessment(const std::filesystem::path& folder, const Predictions& predictions,
+                                       const ChipCollection& collection, const std::vector<std::string>& classes) {
   const ClassificationMetrics metrics = classification_metrics(
       predictions.truth, predictions.predicted, static_cast<int>(classes.size()), predictions.probabilities);
   std::filesystem::create_directories(folder);
   write_file_atomic(folder / "metrics.json", json_text(metrics_json(metrics, classes), 2) + "\n");
   write_file_atomic(folder / "confusion.csv", confusion_csv(metrics, classes));
   write_file_atomic(folder / "predictions.csv", predictions_csv(predictions, collection, classes));
-  return metrics.macro_f1;
+  return metrics;
 }
 
 }  // namespace tinct

@@ -1,7 +1,7 @@
-#include "finetune/assess_job.hpp"
+#include "inference/assess_job.hpp"
 
 #include "batches/chip_collection.hpp"
-#include "finetune/classifier_predictions.hpp"
+#include "inference/classifier_predictions.hpp"
 #include "runs/classifier_artifact.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
@@ -20,7 +20,8 @@ double run_assess(const fs::path& run, const fs::path& store, const fs::path& ou
   }
   chips.use_normalisation(artifact.normalisation);
   const fs::path folder = out.empty() ? run / ("assess-" + store.filename().string()) : out;
-  const double f1 = write_assessment(folder, predict_chips(model, chips, chips.all(), 32), chips, artifact.classes);
+  const double f1 =
+      write_assessment(folder, predict_chips(model, chips, chips.all(), 32), chips, artifact.classes).macro_f1;
   log::info("assess: macro F1 " + std::to_string(f1) + " on " + std::to_string(chips.size()) + " chips; files in " +
             folder.string());
   return f1;

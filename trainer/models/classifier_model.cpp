@@ -1,4 +1,4 @@
-#include "finetune/classifier_model.hpp"
+#include "models/classifier_model.hpp"
 
 namespace tinct {
 

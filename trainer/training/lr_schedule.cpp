@@ -1,6 +1,6 @@
 // The warm-up and cosine formulas of lr_schedule.hpp, with the schedule's inputs checked on
 // every call (cheap, and a bad config fails at step 0 rather than mid-run).
-#include "pretrain/lr_schedule.hpp"
+#include "training/lr_schedule.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -40,6 +40,12 @@ double learning_rate_at(std::int64_t step, std::int64_t total_steps, std::int64_
   const double progress = std::min(1.0, static_cast<double>(step - warmup_steps) /
                                             static_cast<double>(total_steps - warmup_steps));
   return min_lr + (base_lr - min_lr) * 0.5 * (1.0 + std::cos(kPi * progress));
+}
+
+LearningRateSchedule warmup_cosine(const TrainSettings& settings, std::int64_t total_steps) {
+  LearningRateSchedule schedule{total_steps, std::min(settings.warmup, total_steps - 1), settings.lr, settings.min_lr};
+  check_schedule(0, schedule.total_steps, schedule.warmup_steps, schedule.base_lr, schedule.min_lr);
+  return schedule;
 }
 
 void set_learning_rate(torch::optim::Optimizer& optimizer, double lr,

@@ -1,0 +1,172 @@
+// Pinned losses: a tiny seeded pretrain and a tiny seeded finetune on one thread, on the
+// deterministic stores of tiny_stores.hpp, must give the first losses recorded below, so
+// a change to the training path (schedule, step order, random draws, batches) cannot
+// pass unnoticed. Also: tinct export holds exactly the encoder the run ended with.
+//
+// To re-record after a change that is meant to alter the losses: run
+//   build/tinct_training_tests "[parity]"
+// copy the "actual" values the failures print into the arrays below, and say in the
+// commit message why they changed. The tolerance (relative 1e-5) absorbs last-bit
+// differences between BLAS kernels on other CPUs; a real change moves losses far more.
+#include <torch/torch.h>
+#undef CHECK
+#include <catch2/catch.hpp>
+
+#include <algorithm>
+#include <fstream>
+#include <map>
+#include <set>
+#include <string>
+#include <vector>
+
+#include "finetune/finetune_config.hpp"
+#include "finetune/finetune_job.hpp"
+#include "models/colourisation_model.hpp"
+#include "pretrain/pretrain_config.hpp"
+#include "pretrain/pretrain_job.hpp"
+#include "runs/checkpoint.hpp"
+#include "runs/encoder_export.hpp"
+#include "runs/metrics_log.hpp"
+#include "runs/safetensors.hpp"
+#include "runs/torch_runtime.hpp"
+#include "temp_folder.hpp"
+#include "tiny_stores.hpp"
+#include "training/optimizer.hpp"
+#include "util/config_node.hpp"
+
+using tinct::testing::TempFolder;
+
+namespace {
+
+// Pretrain: 6 steps of 4 chips, warm-up 2, AdamW, clip 1 (pretrain.yaml below).
+const std::vector<double> kPretrainLosses{0.4068416655063629, 0.35931727290153503, 0.31338515877723694,
+                                          0.2986493408679962, 0.3257024586200714,  0.29641005396842957};
+// Finetune with a constant rate and no clipping: fine-tuning as it was before it shared the
+// training core (recorded then, unchanged by the move).
+const std::vector<double> kFinetuneConstantLosses{0.6994561888277531, 0.05878546740859747, 0.010377797647379339,
+                                                  0.0061389890615828335};
+// Finetune with its defaults: cosine from the base rate, clip_norm 5.
+const std::vector<double> kFinetuneDefaultLosses{0.7070037983357906, 0.0384108554571867, 0.006955175020266324,
+                                                 0.004615095793269575};
+
+const char* kPretrainYaml = R"(config: pretrain
+stores: [tiny.pairs]
+output: runs/pre
+model: {encoder: compact, width: 0.5}
+train: {steps: 6, batch: 4, lr: 0.003, warmup: 2, log_every: 1, seed: 5}
+validation: {every: 6, chips: 8, previews: 0}
+checkpoints: {every: 3, keep: 1}
+)";
+
+std::string finetune_yaml(const std::string& output, const std::string& extra_train) {
+  return "config: finetune\nstores: [tiny.labels]\noutput: " + output +
+         "\ninit: {from: scratch, model: {encoder: compact, width: 0.5}}\n"
+         "split: {method: blocks, block_size: 300, folds: 3, fold: 0}\n"
+         "train: {epochs: 4, batch: 8, lr: 0.003, seed: 3, patience: 10" + extra_train + "}\n";
+}
+
+std::vector<std::string> split_csv_line(const std::string& line) {
+  std::vector<std::string> fields;
+  for (std::size_t start = 0, end = 0; start <= line.size(); start = end + 1) {
+    end = line.find(',', start);
+    if (end == std::string::npos) end = line.size();
+    fields.push_back(line.substr(start, end - start));
+  }
+  return fields;
+}
+
+std::vector<double> losses_of(const std::filesystem::path& metrics_csv) {
+  std::ifstream in(metrics_csv);
+  std::string line;
+  std::getline(in, line);
+  const auto header = split_csv_line(line);
+  const auto column = static_cast<std::size_t>(std::find(header.begin(), header.end(), "loss") - header.begin());
+  std::vector<double> losses;
+  while (std::getline(in, line)) losses.push_back(std::stod(split_csv_line(line).at(column)));
+  return losses;
+}
+
+void run_pretrain_yaml(const TempFolder& folder, const std::string& yaml) {
+  const auto root = tinct::ConfigNode::from_text(yaml, "pretrain.yaml", folder.path());
+  root.choice("config", {"pretrain"});
+  const tinct::PretrainConfig config = tinct::read_pretrain_config(root);
+  root.finish();
+  tinct::PretrainOptions options;
+  options.resolved_config = tinct::resolved_text(root);
+  tinct::run_pretrain(config, options);
+}
+
+tinct::FinetuneResult run_finetune_yaml(const TempFolder& folder, const std::string& yaml) {
+  const auto root = tinct::ConfigNode::from_text(yaml, "finetune.yaml", folder.path());
+  root.choice("config", {"finetune"});
+  const tinct::FinetuneConfig config = tinct::read_finetune_config(root);
+  root.finish();
+  tinct::FinetuneOptions options;
+  options.resolved_config = tinct::resolved_text(root);
+  return tinct::run_finetune(config, options);
+}
+
+void check_losses(const std::vector<double>& actual, const std::vector<double>& pinned) {
+  REQUIRE(actual.size() >= pinned.size());
+  for (std::size_t i = 0; i < pinned.size(); ++i) {
+    INFO("loss " << i + 1 << ": actual " << tinct::metric_text(actual[i]) << ", pinned " << pinned[i]);
+    CHECK(actual[i] == Approx(pinned[i]).epsilon(1e-5));
+  }
+}
+
+}  // namespace
+
+TEST_CASE("a tiny seeded pretrain gives its pinned losses", "[parity]") {
+  tinct::configure_threads(1);
+  TempFolder folder;
+  tinct::testing::write_tiny_pair_store(folder / "tiny.pairs", 24);
+  run_pretrain_yaml(folder, kPretrainYaml);
+  check_losses(losses_of(folder / "runs/pre/metrics.csv"), kPretrainLosses);
+}
+
+TEST_CASE("a tiny seeded finetune gives its pinned losses", "[parity]") {
+  tinct::configure_threads(1);
+  TempFolder folder;
+  tinct::testing::write_tiny_label_store(folder / "tiny.labels", 8);
+  run_finetune_yaml(folder, finetune_yaml("runs/constant", ", warmup: 0, min_lr: 0.003, clip_norm: 0"));
+  check_losses(losses_of(folder / "runs/constant/metrics.csv"), kFinetuneConstantLosses);
+  const tinct::FinetuneResult result = run_finetune_yaml(folder, finetune_yaml("runs/defaults", ""));
+  check_losses(losses_of(folder / "runs/defaults/metrics.csv"), kFinetuneDefaultLosses);
+  CHECK(result.status == tinct::RunStatus::done);
+  CHECK(result.epochs_run == 4);
+  CHECK(result.test.truth.size() == result.test.probabilities.size());
+  CHECK(result.metrics.count == static_cast<std::int64_t>(result.test.truth.size()));
+}
+
+TEST_CASE("tinct export holds exactly the encoder tensors the run ended with") {
+  tinct::configure_threads(1);
+  TempFolder folder;
+  tinct::testing::write_tiny_pair_store(folder / "tiny.pairs", 24);
+  run_pretrain_yaml(folder, kPretrainYaml);
+  const auto out = folder / "encoder.safetensors";
+  const int count = tinct::export_encoder(folder / "runs/pre", out);
+  std::map<std::string, std::string> metadata;
+  const tinct::NamedTensors exported = tinct::read_safetensors(out, &metadata);
+  CHECK(metadata.at("bands") == "red_edge,nir,swir");
+  CHECK(metadata.at("chip_size") == "16");
+
+  // The model as the run's last checkpoint holds it, rebuilt independently of encoder.pt.
+  const auto checkpoint = folder / "runs/pre/checkpoints/step-00000006.pt";
+  const tinct::ModelSpec spec = tinct::model_spec_from_yaml(tinct::read_checkpoint_info(checkpoint).model_spec_yaml);
+  tinct::ColourisationModel model(spec);
+  tinct::GroupedOptimizer optimizer = tinct::make_optimizer({{model->parameters(), 1.0}}, tinct::TrainSettings{});
+  tinct::load_checkpoint(checkpoint, *model, *optimizer.optimizer);
+  std::map<std::string, torch::Tensor> expected;
+  for (const auto& item : model->encoder->named_parameters()) expected[item.key()] = item.value();
+  for (const auto& item : model->encoder->named_buffers()) expected[item.key()] = item.value();
+
+  CHECK(count == static_cast<int>(expected.size()));
+  REQUIRE(exported.size() == expected.size());
+  for (const auto& [name, tensor] : exported) {
+    INFO(name);
+    REQUIRE(expected.count(name) == 1);
+    CHECK(tensor.sizes() == expected[name].sizes());
+    CHECK(tensor.scalar_type() == expected[name].scalar_type());
+    CHECK(torch::equal(tensor, expected[name]));
+  }
+}

@@ -1,0 +1,62 @@
+// The life of one training run in its folder, the same for every loop: the run folder is
+// opened (locked), the resolved config saved with its hash (on --resume it must equal the
+// one the run started with), run.yaml says running, SIGINT/SIGTERM are caught; at the end
+// run.yaml and log.txt say how it ended (done, stopped, interrupted or failed) and why.
+// The one place that decides which process writes (later: rank 0 of a data-parallel job).
+#pragma once
+
+#include <cstdint>
+#include <filesystem>
+#include <functional>
+#include <string>
+
+#include "runs/run_folder.hpp"
+#include "training/stop_signals.hpp"
+
+namespace tinct {
+
+struct RunStart {
+  std::string command;  // "pretrain", "finetune": begins log lines and messages
+  std::filesystem::path output;
+  bool force = false;   // start over in an existing run folder
+  bool resume = false;  // continue the run in the folder
+  std::string resolved_config;
+  std::uint64_t seed = 0;
+};
+
+struct RunOutcome {
+  RunStatus status = RunStatus::done;  // done, stopped or interrupted
+  std::string reason;                  // why it ended before its end; "" when done
+};
+
+class RunLifecycle {
+ public:
+  // Fails (usage) on --resume with a config other than the run's, before writing anything.
+  explicit RunLifecycle(const RunStart& start);
+
+  RunFolder& folder() { return folder_; }
+  const std::string& config_hash() const { return config_hash_; }
+  // Whether this process writes checkpoints and artefacts: always, until data-parallel
+  // training makes it rank 0 only.
+  bool is_writer() const { return true; }
+
+  // A stop signal has come: finish the step, write a checkpoint, return interrupted_after().
+  bool stop_requested() const { return signals_.requested(); }
+  // "interrupted by SIGTERM after step 12; --resume continues"
+  RunOutcome interrupted_after(const std::string& point) const;
+
+  // Runs the loop. Its outcome, or `failed` with the error's message, goes into run.yaml
+  // (status, reason, end time) and log.txt; errors are rethrown. An interrupted run is then
+  // reported as a runtime error (exit 1), so scripts do not carry on as if it were done.
+  void execute(const std::function<RunOutcome()>& body);
+
+ private:
+  void record(RunStatus status, const std::string& reason);
+
+  RunStart start_;
+  RunFolder folder_;
+  std::string config_hash_;
+  StopSignals signals_;
+};
+
+}  // namespace tinct
