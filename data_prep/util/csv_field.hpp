@@ -2,7 +2,10 @@
 // line break, with quotes doubled.
 #pragma once
 
+#include <optional>
 #include <string>
+#include <string_view>
+#include <vector>
 
 namespace tinct {
 
@@ -23,6 +26,35 @@ inline std::string csv_field(const std::string& field) {
   std::string out;
   append_csv_field(out, field);
   return out;
+}
+
+// The fields of one RFC 4180 row (without its line ending); nullopt when a quote is
+// not closed or text follows a closing quote.
+inline std::optional<std::vector<std::string>> parse_csv_row(std::string_view row) {
+  std::vector<std::string> fields(1);
+  std::size_t i = 0;
+  while (i < row.size()) {
+    if (row[i] == ',') {
+      fields.emplace_back();
+      ++i;
+    } else if (row[i] != '"' || !fields.back().empty()) {
+      fields.back() += row[i++];
+    } else {
+      for (++i;; ++i) {
+        if (i >= row.size()) return std::nullopt;
+        if (row[i] != '"') {
+          fields.back() += row[i];
+        } else if (i + 1 < row.size() && row[i + 1] == '"') {
+          fields.back() += '"';
+          ++i;
+        } else {
+          break;
+        }
+      }
+      if (++i < row.size() && row[i] != ',') return std::nullopt;
+    }
+  }
+  return fields;
 }
 
 }  // namespace tinct

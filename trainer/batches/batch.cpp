@@ -38,6 +38,7 @@ Batch assemble_batch(const ChipCollection& collection, const std::vector<ChipRef
     const std::int64_t chip = chips[i].chip;
     const int symmetry = symmetries[static_cast<std::size_t>(i)];
     store.read_reflectance(chip, reflectance.data());
+    collection.note_read(chips[i]);
     normalise(collection.normalisation(), store.valid(chip), size, reflectance.data());
     apply_symmetry(symmetry, reflectance.data(), batch.bands[i].data_ptr<float>(), bands, size);
     apply_symmetry(symmetry, store.valid(chip), valid.data(), 1, size);

@@ -1,6 +1,9 @@
 #include "batches/chip_collection.hpp"
 
 #include <algorithm>
+#include <mutex>
+#include <set>
+#include <utility>
 
 #include "util/error.hpp"
 #include "util/running_stats.hpp"
@@ -29,7 +32,28 @@ BandNormalisation merge_statistics(const std::vector<const StoreManifest*>& mani
   return result;
 }
 
-ChipCollection::ChipCollection(const std::vector<std::filesystem::path>& stores) {
+struct ChipCollection::ReadTally {
+  std::mutex mutex;
+  std::set<std::pair<int, std::int64_t>> chips;
+};
+
+void ChipCollection::note_read(const ChipRef& ref) const {
+  std::lock_guard<std::mutex> lock(reads_->mutex);
+  reads_->chips.insert({ref.store, ref.chip});
+}
+
+std::int64_t ChipCollection::chips_read() const {
+  std::lock_guard<std::mutex> lock(reads_->mutex);
+  return static_cast<std::int64_t>(reads_->chips.size());
+}
+
+void ChipCollection::forget_reads() const {
+  std::lock_guard<std::mutex> lock(reads_->mutex);
+  reads_->chips.clear();
+}
+
+ChipCollection::ChipCollection(const std::vector<std::filesystem::path>& stores)
+    : reads_(std::make_shared<ReadTally>()) {
   if (stores.empty()) fail_usage("no chip store given");
   for (const auto& path : stores) stores_.push_back(StoreReader::open(path));
   const StoreReader& first = stores_.front();

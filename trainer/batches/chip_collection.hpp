@@ -6,6 +6,7 @@
 
 #include <cstdint>
 #include <filesystem>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -43,6 +44,12 @@ class ChipCollection {
   const std::vector<std::string>& classes() const { return classes_; }
   int class_of(const ChipRef& ref) const;
 
+  // A tally of the distinct chips whose bands were read (assemble_batch notes each), so a
+  // run can show, and tests check, that it read no labelled chip beyond its budget.
+  void note_read(const ChipRef& ref) const;
+  std::int64_t chips_read() const;
+  void forget_reads() const;
+
  private:
   void index_classes();
 
@@ -51,6 +58,8 @@ class ChipCollection {
   std::vector<std::string> classes_;
   std::vector<std::vector<int>> class_index_;  // per store, per chip
   int chip_size_ = 0;
+  struct ReadTally;
+  std::shared_ptr<ReadTally> reads_;
 };
 
 // Normalisation from a merged set of per-store statistics (exposed for tests).

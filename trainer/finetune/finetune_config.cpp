@@ -50,7 +50,7 @@ void read_classes(const ConfigNode& node, FinetuneConfig& config) {
   node.finish();
 }
 
-SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
+SplitSettings read_split(const ConfigNode& node) {
   SplitSettings s;
   const std::string method = node.choice("method", {"blocks", "groups", "random"}, "blocks");
   s.method = method == "groups" ? SplitMethod::groups : method == "random" ? SplitMethod::random : SplitMethod::blocks;
@@ -63,9 +63,28 @@ SplitSettings read_split(const ConfigNode& node, std::uint64_t seed) {
   }
   s.buffer = node.number("buffer", 0.0, 0.0);
   s.validation_fraction = node.number("validation_fraction", 0.2, 0.05, 0.5);
-  s.seed = seed;
+  s.seed = static_cast<std::uint64_t>(node.integer("seed", 0, 0));
   node.finish();
   return s;
+}
+
+// budget: all, or {per_class: N} or {fraction: F}, with an optional seed (split.seed by default).
+LabelBudget read_budget(const ConfigNode& root, std::uint64_t split_seed) {
+  LabelBudget budget;
+  budget.seed = split_seed;
+  if (root.has("budget") && root.peek("budget")) {
+    root.choice("budget", {"all"});
+    return budget;
+  }
+  const ConfigNode node = root.section("budget");
+  budget.per_class = static_cast<int>(node.integer("per_class", 0, 0));
+  budget.fraction = node.number("fraction", 1.0, 1e-6, 1.0);
+  if (budget.per_class > 0 && node.has("fraction")) {
+    node.fail("fraction", "is given with per_class; give one of them");
+  }
+  budget.seed = static_cast<std::uint64_t>(node.integer("seed", static_cast<std::int64_t>(split_seed), 0));
+  node.finish();
+  return budget;
 }
 
 void read_train(const ConfigNode& node, FinetuneConfig& config) {
@@ -104,12 +123,9 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   head.finish();
   read_freeze(root.section("freeze"), config);
   read_classes(root.section("classes"), config);
-  const ConfigNode budget = root.section("budget");
-  config.budget.per_class = static_cast<int>(budget.integer("per_class", 0, 0));
-  config.budget.fraction = budget.number("fraction", 1.0, 1e-6, 1.0);
-  budget.finish();
   read_train(root.section("train"), config);
-  config.split = read_split(root.section("split"), config.train.seed);
+  config.split = read_split(root.section("split"));
+  config.budget = read_budget(root, config.split.seed);
   return config;
 }
 

@@ -5,6 +5,7 @@
 #include <cstdio>
 
 #include "batches/batch_loader.hpp"
+#include "inference/split_table.hpp"
 #include "runs/checkpoint.hpp"
 #include "runs/classifier_artifact.hpp"
 #include "runs/encoder_artifact.hpp"
@@ -13,6 +14,7 @@
 #include "training/optimizer.hpp"
 #include "training/run_lifecycle.hpp"
 #include "training/train_step.hpp"
+#include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 
@@ -27,8 +29,7 @@ constexpr int kCheckpointsKept = 2;
 struct FinetuneData {
   ChipCollection chips;
   ClassifierArtifact artifact;  // architecture, classes, input statistics
-  LabelSplit split;
-  std::vector<ChipRef> train;   // split.train within the label budget
+  LabelSplit split;             // train and validation within the label budget
   torch::Tensor class_weights;  // (K) float
   std::int64_t steps_per_epoch = 0;
 };
@@ -97,22 +98,35 @@ torch::Tensor class_weights(const FinetuneConfig& c, const ChipCollection& chips
   return torch::tensor(weights);
 }
 
-void log_split(const LabelSplit& split, std::size_t budgeted) {
-  log::info("finetune: " + std::to_string(split.units) + " split units; " + std::to_string(budgeted) +
-            " training chips (of " + std::to_string(split.train.size()) + " before the budget), " +
-            std::to_string(split.validation.size()) + " validation, " + std::to_string(split.test.size()) +
-            " test" + (split.dropped_by_buffer ? ", " + std::to_string(split.dropped_by_buffer) +
-                                                    " dropped within the buffer" : std::string()));
+void log_split(const LabelSplit& split, int fold) {
+  log::info("finetune: " + std::to_string(split.units) + " split units; fold " + std::to_string(fold) + ": " +
+            std::to_string(split.train.size()) + " training, " + std::to_string(split.validation.size()) +
+            " validation (carved from the same labels), " + std::to_string(split.test.size()) + " test chips" +
+            (split.over_budget ? ", " + std::to_string(split.over_budget) + " over the budget" : std::string()) +
+            (split.dropped_by_buffer ? ", " + std::to_string(split.dropped_by_buffer) + " within the buffer"
+                                     : std::string()) + "; every chip's role in split.csv");
 }
 
-FinetuneData prepare_split(const FinetuneConfig& c) {
-  FinetuneData data{ChipCollection(c.stores), {}, {}, {}, {}, 0};
+std::vector<SplitRow> split_rows(const FinetuneConfig& c, const ChipCollection& chips, const LabelSplit& split) {
+  std::vector<SplitRow> rows;
+  for (const ChipAssignment& a : split.assignment) {
+    const ChipRecord r = chips.store(a.chip.store).record(a.chip.chip);
+    rows.push_back({c.stores[static_cast<std::size_t>(a.chip.store)].string(), a.chip.chip, r.scene, r.source_id,
+                    r.label, a.unit, r.x, r.y, a.fold, role_name(a.role), a.reason});
+  }
+  return rows;
+}
+
+FinetuneData prepare_split(const FinetuneConfig& c, RunLifecycle& run) {
+  FinetuneData data{ChipCollection(c.stores), {}, {}, {}, 0};
   data.artifact = describe_classifier(c, data.chips);
-  data.split = split_labels(data.chips, c.split);
-  data.train = apply_budget(data.chips, data.split.train, c.budget, c.train.seed);
-  log_split(data.split, data.train.size());
-  data.class_weights = class_weights(c, data.chips, data.train);
-  const auto chips = static_cast<std::int64_t>(data.train.size());
+  data.split = split_labels(data.chips, c.split, c.budget);
+  log_split(data.split, c.split.fold);
+  if (run.is_writer()) {
+    write_file_atomic(run.folder().file("split.csv"), split_table_csv(split_rows(c, data.chips, data.split)));
+  }
+  data.class_weights = class_weights(c, data.chips, data.split.train);
+  const auto chips = static_cast<std::int64_t>(data.split.train.size());
   data.steps_per_epoch = std::max<std::int64_t>(1, (chips + c.train.batch - 1) / c.train.batch);
   return data;
 }
@@ -219,7 +233,7 @@ RunOutcome train_epochs(Finetuning& f, EpochState& state, const FinetuneData& da
                         RunLifecycle& run, int stop_after) {
   const std::int64_t per_epoch = data.steps_per_epoch;
   const LearningRateSchedule schedule = warmup_cosine(c.train, c.epochs * per_epoch);
-  BatchLoader loader(data.chips, data.train, {c.train.batch, c.train.seed, c.train.augment, state.step});
+  BatchLoader loader(data.chips, data.split.train, {c.train.batch, c.train.seed, c.train.augment, state.step});
   TrainStep train_step(*f.model, *f.optimizer.optimizer, c.train.clip_norm);
   const auto cross_entropy_options = torch::nn::functional::CrossEntropyFuncOptions().weight(data.class_weights);
   MetricsLog metrics(run.folder().file("metrics.csv"), kEpochColumns);
@@ -293,15 +307,20 @@ FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& opti
   RunLifecycle run({"finetune", c.output, options.force, options.resume, options.resolved_config, c.train.seed});
   FinetuneResult result;
   run.execute([&] {
-    const FinetuneData data = prepare_split(c);
+    const FinetuneData data = prepare_split(c, run);
     Finetuning model = build_model(c, data);
     EpochState state = options.resume ? restore(run, model, data) : EpochState{};
+    data.chips.forget_reads();
     const RunOutcome outcome = train_epochs(model, state, data, c, run, options.stop_after);
+    const std::int64_t labels_read = data.chips.chips_read();
+    log::info("finetune: " + std::to_string(labels_read) + " labelled chips read for training and validation");
     if (outcome.status != RunStatus::done) {
       result.status = outcome.status;
+      result.labelled_chips_read = labels_read;
       return outcome;
     }
     result = test_best(run, data, state, c);
+    result.labelled_chips_read = labels_read;
     return outcome;
   });
   return result;

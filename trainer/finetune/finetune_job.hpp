@@ -30,6 +30,9 @@ struct FinetuneResult {
   double best_validation_macro_f1 = 0;
   Predictions test;               // the best model on the test fold, with class probabilities
   ClassificationMetrics metrics;  // of `test`, as written to metrics.json
+  // Distinct labelled chips whose bands this process read before the test (training and
+  // validation): at most budget.per_class x classes.
+  std::int64_t labelled_chips_read = 0;
 };
 
 // Fails (runtime) when interrupted by SIGINT or SIGTERM, after writing a checkpoint.

@@ -4,30 +4,40 @@
 #include <cmath>
 #include <map>
 #include <random>
+#include <set>
 
 #include "util/log.hpp"
 
 namespace tinct {
+namespace {
 
-std::vector<ChipRef> apply_budget(const ChipCollection& chips, const std::vector<ChipRef>& train,
-                                  const LabelBudget& budget, std::uint64_t seed) {
-  if (budget.per_class == 0 && budget.fraction >= 1.0) return train;
-  std::map<int, std::vector<ChipRef>> by_class;
-  for (const ChipRef& ref : train) by_class[chips.class_of(ref)].push_back(ref);
-  std::mt19937_64 random(seed ^ 0xB0D6E7ULL);
-  std::vector<ChipRef> kept;
-  for (auto& [label, refs] : by_class) {
-    std::shuffle(refs.begin(), refs.end(), random);
-    const std::size_t want = budget.per_class > 0
-                                 ? static_cast<std::size_t>(budget.per_class)
-                                 : std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(budget.fraction * refs.size())));
-    if (want > refs.size()) {
+std::size_t wanted(const LabelBudget& budget, std::size_t available) {
+  if (budget.per_class > 0) return static_cast<std::size_t>(budget.per_class);
+  return std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(budget.fraction * available)));
+}
+
+}  // namespace
+
+std::vector<ChipRef> apply_budget(const ChipCollection& chips, const std::vector<ChipRef>& pool,
+                                  const LabelBudget& budget) {
+  if (!budget.limits()) return pool;
+  std::map<int, std::vector<std::size_t>> by_class;  // positions in pool
+  for (std::size_t i = 0; i < pool.size(); ++i) by_class[chips.class_of(pool[i])].push_back(i);
+  std::mt19937_64 random(budget.seed ^ 0xB0D6E7ULL);
+  std::set<std::size_t> kept;
+  for (auto& [label, positions] : by_class) {
+    std::shuffle(positions.begin(), positions.end(), random);
+    const std::size_t want = wanted(budget, positions.size());
+    if (want > positions.size()) {
       log::warning("budget: class \"" + chips.classes()[static_cast<std::size_t>(label)] + "\" has only " +
-                   std::to_string(refs.size()) + " training chips, fewer than " + std::to_string(want));
+                   std::to_string(positions.size()) + " labelled chips outside the test fold, fewer than " +
+                   std::to_string(want));
     }
-    kept.insert(kept.end(), refs.begin(), refs.begin() + static_cast<long>(std::min(want, refs.size())));
+    kept.insert(positions.begin(), positions.begin() + static_cast<long>(std::min(want, positions.size())));
   }
-  return kept;
+  std::vector<ChipRef> drawn;
+  for (const std::size_t i : kept) drawn.push_back(pool[i]);
+  return drawn;
 }
 
 }  // namespace tinct

@@ -5,12 +5,16 @@
 #include <map>
 #include <random>
 #include <set>
+#include <utility>
 
+#include "finetune/validation_carve.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 
 namespace tinct {
 namespace {
+
+using Point = std::pair<double, double>;
 
 void require_enough_per_class(const ChipCollection& chips, int folds) {
   std::map<int, std::int64_t> counts;
@@ -34,27 +38,112 @@ std::map<std::string, int> deal_folds(const std::vector<std::string>& units, int
   return fold_of;
 }
 
-std::int64_t drop_near(std::vector<ChipRef>& side, const std::vector<ChipRef>& test, const ChipCollection& chips,
-                       double buffer) {
-  if (buffer <= 0) return 0;
-  std::vector<std::pair<double, double>> points;
-  for (const ChipRef& ref : test) {
-    const ChipRecord r = chips.store(ref.store).record(ref.chip);
-    points.emplace_back(r.x, r.y);
+Point position(const ChipCollection& chips, const ChipRef& ref) {
+  const ChipRecord r = chips.store(ref.store).record(ref.chip);
+  return {r.x, r.y};
+}
+
+// Moves the chips of `side` closer than `buffer` to any of `others` out; returns them.
+// A chip exactly `buffer` away stays.
+std::vector<ChipRef> drop_near(std::vector<ChipRef>& side, const std::vector<ChipRef>& others,
+                               const ChipCollection& chips, double buffer) {
+  if (buffer <= 0) return {};
+  std::vector<Point> points;
+  for (const ChipRef& ref : others) points.push_back(position(chips, ref));
+  std::vector<ChipRef> kept, dropped;
+  for (const ChipRef& ref : side) {
+    const auto [x, y] = position(chips, ref);
+    const bool near = std::any_of(points.begin(), points.end(),
+                                  [&](const Point& p) { return std::hypot(x - p.first, y - p.second) < buffer; });
+    (near ? dropped : kept).push_back(ref);
   }
-  const auto near_test = [&](const ChipRef& ref) {
-    const ChipRecord r = chips.store(ref.store).record(ref.chip);
-    for (const auto& [x, y] : points) {
-      if (std::hypot(r.x - x, r.y - y) < buffer) return true;
+  side = std::move(kept);
+  return dropped;
+}
+
+std::string class_list(const ChipCollection& chips, const std::vector<ChipRef>& side) {
+  std::map<int, std::int64_t> counts;
+  for (const ChipRef& ref : side) ++counts[chips.class_of(ref)];
+  std::string text;
+  for (const auto& [c, n] : counts) {
+    text += (text.empty() ? "" : ", ") + std::to_string(n) + " \"" + chips.classes()[static_cast<std::size_t>(c)] + "\"";
+  }
+  return text;
+}
+
+void require_two_classes(const ChipCollection& chips, const std::vector<ChipRef>& side, const std::string& name,
+                         int fold) {
+  std::set<int> present;
+  for (const ChipRef& ref : side) present.insert(chips.class_of(ref));
+  if (present.size() >= 2) return;
+  fail_usage("the " + name + " split of fold " + std::to_string(fold) + " holds " +
+             (side.empty() ? std::string("no chips") : "one class only (" + class_list(chips, side) + ")") +
+             "; its scores would mean nothing. Use a smaller split.block_size or split.buffer, fewer split.folds, "
+             "a larger budget or labels of more classes");
+}
+
+struct FoldDeal {
+  std::map<std::string, std::vector<ChipRef>> by_unit;
+  std::map<std::string, int> fold_of;
+};
+
+FoldDeal deal(const ChipCollection& chips, const SplitSettings& settings) {
+  FoldDeal d;
+  for (const ChipRef& ref : chips.all()) d.by_unit[split_unit(chips, ref, settings)].push_back(ref);
+  std::vector<std::string> units;
+  for (const auto& entry : d.by_unit) units.push_back(entry.first);
+  if (static_cast<int>(units.size()) < settings.folds) {
+    fail_usage("the labels fall into " + std::to_string(units.size()) + " split units, fewer than " +
+               std::to_string(settings.folds) + " folds; use a smaller split.block_size or fewer folds");
+  }
+  d.fold_of = deal_folds(units, settings.folds, settings.seed);
+  return d;
+}
+
+// Every chip's unit, fold and role, in collection order.
+std::vector<ChipAssignment> assignments(const ChipCollection& chips, const FoldDeal& d, const LabelSplit& split,
+                                        const std::vector<std::pair<std::vector<ChipRef>, const char*>>& unused) {
+  std::map<std::pair<int, std::int64_t>, std::pair<ChipRole, std::string>> role_of;
+  for (const ChipRef& ref : split.train) role_of[{ref.store, ref.chip}] = {ChipRole::train, ""};
+  for (const ChipRef& ref : split.validation) role_of[{ref.store, ref.chip}] = {ChipRole::validation, ""};
+  for (const ChipRef& ref : split.test) role_of[{ref.store, ref.chip}] = {ChipRole::test, ""};
+  for (const auto& [refs, reason] : unused) {
+    for (const ChipRef& ref : refs) role_of[{ref.store, ref.chip}] = {ChipRole::unused, reason};
+  }
+  std::vector<ChipAssignment> all;
+  for (const auto& [unit, refs] : d.by_unit) {
+    for (const ChipRef& ref : refs) {
+      const auto& [role, reason] = role_of.at({ref.store, ref.chip});
+      all.push_back({ref, unit, d.fold_of.at(unit), role, reason});
     }
-    return false;
-  };
-  const std::size_t before = side.size();
-  side.erase(std::remove_if(side.begin(), side.end(), near_test), side.end());
-  return static_cast<std::int64_t>(before - side.size());
+  }
+  std::sort(all.begin(), all.end(), [](const ChipAssignment& a, const ChipAssignment& b) {
+    return std::make_pair(a.chip.store, a.chip.chip) < std::make_pair(b.chip.store, b.chip.chip);
+  });
+  return all;
+}
+
+std::vector<ChipRef> without(const std::vector<ChipRef>& all, const std::vector<ChipRef>& kept) {
+  std::set<std::pair<int, std::int64_t>> keep;
+  for (const ChipRef& ref : kept) keep.insert({ref.store, ref.chip});
+  std::vector<ChipRef> rest;
+  for (const ChipRef& ref : all) {
+    if (!keep.count({ref.store, ref.chip})) rest.push_back(ref);
+  }
+  return rest;
 }
 
 }  // namespace
+
+const char* role_name(ChipRole role) {
+  switch (role) {
+    case ChipRole::train: return "train";
+    case ChipRole::validation: return "validation";
+    case ChipRole::test: return "test";
+    case ChipRole::unused: return "unused";
+  }
+  return "";
+}
 
 std::string split_unit(const ChipCollection& chips, const ChipRef& ref, const SplitSettings& settings) {
   const ChipRecord record = chips.store(ref.store).record(ref.chip);
@@ -70,7 +159,7 @@ std::string split_unit(const ChipCollection& chips, const ChipRef& ref, const Sp
   return "";
 }
 
-LabelSplit split_labels(const ChipCollection& chips, const SplitSettings& settings) {
+LabelSplit split_labels(const ChipCollection& chips, const SplitSettings& settings, const LabelBudget& budget) {
   if (settings.fold < 0 || settings.fold >= settings.folds) {
     fail_usage("split.fold must be from 0 to split.folds - 1 (" + std::to_string(settings.folds - 1) + ")");
   }
@@ -79,39 +168,30 @@ LabelSplit split_labels(const ChipCollection& chips, const SplitSettings& settin
                  "makes the scores optimistic; prefer blocks or groups");
   }
   require_enough_per_class(chips, settings.folds);
-  std::map<std::string, std::vector<ChipRef>> by_unit;
-  for (const ChipRef& ref : chips.all()) by_unit[split_unit(chips, ref, settings)].push_back(ref);
-  std::vector<std::string> units;
-  for (const auto& entry : by_unit) units.push_back(entry.first);
-  if (static_cast<int>(units.size()) < settings.folds) {
-    fail_usage("the labels fall into " + std::to_string(units.size()) + " split units, fewer than " +
-               std::to_string(settings.folds) + " folds; use a smaller split.block_size or fewer folds");
-  }
-  const auto fold_of = deal_folds(units, settings.folds, settings.seed);
-  std::vector<std::string> training_units;
+  const FoldDeal d = deal(chips, settings);
   LabelSplit split;
-  split.units = static_cast<int>(units.size());
-  for (const auto& unit : units) {
-    if (fold_of.at(unit) == settings.fold) {
-      split.test.insert(split.test.end(), by_unit[unit].begin(), by_unit[unit].end());
-    } else {
-      training_units.push_back(unit);
-    }
+  split.units = static_cast<int>(d.by_unit.size());
+  std::vector<ChipRef> pool;
+  for (const auto& [unit, refs] : d.by_unit) {
+    auto& side = d.fold_of.at(unit) == settings.fold ? split.test : pool;
+    side.insert(side.end(), refs.begin(), refs.end());
   }
-  // Validation: a share of the training units, carved out the same way.
-  const auto validation_fold = deal_folds(training_units, std::max(2, static_cast<int>(std::lround(1.0 / settings.validation_fraction))),
-                                          settings.seed + 1);
-  for (const auto& unit : training_units) {
-    auto& side = validation_fold.at(unit) == 0 ? split.validation : split.train;
-    side.insert(side.end(), by_unit[unit].begin(), by_unit[unit].end());
-  }
-  split.dropped_by_buffer = drop_near(split.train, split.test, chips, settings.buffer) +
-                            drop_near(split.validation, split.test, chips, settings.buffer);
-  if (split.train.empty() || split.validation.empty() || split.test.empty()) {
-    fail_usage("the split leaves " + std::to_string(split.train.size()) + " training, " +
-               std::to_string(split.validation.size()) + " validation and " + std::to_string(split.test.size()) +
-               " test chips; use a smaller split.block_size or split.buffer, or fewer folds");
-  }
+  const std::vector<ChipRef> near_test = drop_near(pool, split.test, chips, settings.buffer);
+  const std::vector<ChipRef> labels = apply_budget(chips, pool, budget);
+  const std::vector<ChipRef> over_budget = without(pool, labels);
+  std::vector<std::string> units;
+  for (const ChipRef& ref : labels) units.push_back(split_unit(chips, ref, settings));
+  CarvedLabels carved = carve_validation(chips, labels, units, settings.validation_fraction, budget.seed);
+  split.validation = std::move(carved.validation);
+  split.train = std::move(carved.train);
+  const std::vector<ChipRef> near_validation = drop_near(split.train, split.validation, chips, settings.buffer);
+  split.dropped_by_buffer = static_cast<std::int64_t>(near_test.size() + near_validation.size());
+  split.over_budget = static_cast<std::int64_t>(over_budget.size());
+  split.assignment = assignments(chips, d, split, {{near_test, "near_test"}, {over_budget, "over_budget"},
+                                                   {near_validation, "near_validation"}});
+  require_two_classes(chips, split.train, "training", settings.fold);
+  require_two_classes(chips, split.validation, "validation", settings.fold);
+  require_two_classes(chips, split.test, "test", settings.fold);
   return split;
 }
 
