@@ -51,6 +51,7 @@ void log_summary(const std::vector<std::string>& classes, const std::map<std::st
 }  // namespace
 
 LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& options) {
+  log::start_capture();  // into the store's log.txt
   std::vector<const SceneSpec*> scenes;
   for (const SceneSpec& scene : config.scenes) scenes.push_back(&scene);
   StorePlan plan;
@@ -100,6 +101,9 @@ LabelSummary run_label_job(const LabelConfig& config, const LabelJobOptions& opt
                  ". Check the labels' CRS and dates against the scenes, match.max_days and chips.min_valid");
   }
   store.add_file(kDropReportName, drop_report_csv(drops));
+  log::info("label: " + std::to_string(summary.kept) + " chips of " + std::to_string(classes.size()) +
+            " classes into " + options.output.string() + ", " + std::to_string(summary.dropped) + " labels dropped");
+  store.add_file("log.txt", log::take_capture());
 
   std::vector<StoreScene> described;
   for (std::size_t s = 0; s < config.scenes.size(); ++s) {

@@ -28,4 +28,25 @@ bool crs_is_geographic(const std::string& wkt) {
   return crs.importFromWkt(wkt.c_str()) == OGRERR_NONE && crs.IsGeographic();
 }
 
+std::string crs_short_name(const std::string& wkt) {
+  ensure_gdal();
+  OGRSpatialReference crs;
+  if (wkt.empty() || crs.importFromWkt(wkt.c_str()) != OGRERR_NONE) return "";
+  const char* authority = crs.GetAuthorityName(nullptr);
+  const char* code = crs.GetAuthorityCode(nullptr);
+  if ((!authority || !code) && crs.AutoIdentifyEPSG() == OGRERR_NONE) {
+    authority = crs.GetAuthorityName(nullptr);
+    code = crs.GetAuthorityCode(nullptr);
+  }
+  if (authority && code) return std::string(authority) + ":" + code;
+  const char* name = crs.GetName();
+  return name ? name : "";
+}
+
+bool crs_has_lonlat(const std::string& wkt) {
+  ensure_gdal();
+  OGRSpatialReference crs;
+  return !wkt.empty() && crs.importFromWkt(wkt.c_str()) == OGRERR_NONE && (crs.IsProjected() || crs.IsGeographic());
+}
+
 }  // namespace tinct

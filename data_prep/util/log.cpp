@@ -16,6 +16,8 @@ struct Sink {
   std::mutex mutex;
   bool quiet = false;
   std::ofstream file;
+  bool capturing = false;
+  std::string captured;
 };
 
 Sink& sink() {
@@ -65,12 +67,26 @@ void write(Level level, const std::string& message) {
                     (level == Level::info && !s.quiet);
   if (show) std::cerr << prefix(level) << message << std::endl;
   if (s.file.is_open()) s.file << timestamp() << ' ' << prefix(level) << message << std::endl;
+  if (s.capturing) s.captured += timestamp() + ' ' + prefix(level) + message + '\n';
 }
 
 void write_file_only(Level level, const std::string& message) {
   Sink& s = sink();
   std::lock_guard<std::mutex> lock(s.mutex);
   if (s.file.is_open()) s.file << timestamp() << ' ' << prefix(level) << message << std::endl;
+  if (s.capturing) s.captured += timestamp() + ' ' + prefix(level) + message + '\n';
+}
+
+void start_capture() {
+  std::lock_guard<std::mutex> lock(sink().mutex);
+  sink().capturing = true;
+  sink().captured.clear();
+}
+
+std::string take_capture() {
+  std::lock_guard<std::mutex> lock(sink().mutex);
+  sink().capturing = false;
+  return std::move(sink().captured);
 }
 
 bool stderr_is_terminal() { return ::isatty(STDERR_FILENO) == 1; }

@@ -19,6 +19,10 @@ inline void info(const std::string& message) { write(Level::info, message); }
 inline void warning(const std::string& message) { write(Level::warning, message); }
 inline void error(const std::string& message) { write(Level::error, message); }
 inline void debug(const std::string& message) { write(Level::debug, message); }
+// Also keep every line (as log.txt has it) in memory from now on, until taken: for logs
+// written inside an output that is itself written atomically (a label store's log.txt).
+void start_capture();
+std::string take_capture();  // the lines kept since start_capture(); stops keeping
 // Only into the run's log file (e.g. a failure that main reports on stderr anyway).
 void write_file_only(Level level, const std::string& message);
 

@@ -101,7 +101,7 @@ FoldDeal deal(const ChipCollection& chips, const SplitSettings& settings) {
 }
 
 // Every chip's unit, fold and role, in collection order.
-std::vector<ChipAssignment> assignments(const ChipCollection& chips, const FoldDeal& d, const LabelSplit& split,
+std::vector<ChipAssignment> assignments(const FoldDeal& d, const LabelSplit& split,
                                         const std::vector<std::pair<std::vector<ChipRef>, const char*>>& unused) {
   std::map<std::pair<int, std::int64_t>, std::pair<ChipRole, std::string>> role_of;
   for (const ChipRef& ref : split.train) role_of[{ref.store, ref.chip}] = {ChipRole::train, ""};
@@ -187,8 +187,8 @@ LabelSplit split_labels(const ChipCollection& chips, const SplitSettings& settin
   const std::vector<ChipRef> near_validation = drop_near(split.train, split.validation, chips, settings.buffer);
   split.dropped_by_buffer = static_cast<std::int64_t>(near_test.size() + near_validation.size());
   split.over_budget = static_cast<std::int64_t>(over_budget.size());
-  split.assignment = assignments(chips, d, split, {{near_test, "near_test"}, {over_budget, "over_budget"},
-                                                   {near_validation, "near_validation"}});
+  split.assignment = assignments(d, split, {{near_test, "near_test"}, {over_budget, "over_budget"},
+                                           {near_validation, "near_validation"}});
   require_two_classes(chips, split.train, "training", settings.fold);
   require_two_classes(chips, split.validation, "validation", settings.fold);
   require_two_classes(chips, split.test, "test", settings.fold);

@@ -1,27 +1,41 @@
 #include "inference/classifier_predictions.hpp"
 
 #include <algorithm>
+#include <cstdio>
 
 #include "batches/batch.hpp"
+#include "inference/chip_places.hpp"
 #include "models/classifier_model.hpp"
 #include "runs/metrics_log.hpp"
 #include "util/atomic_file.hpp"
 #include "util/csv_field.hpp"
+#include "util/number_text.hpp"
 
 namespace tinct {
 namespace {
 
+std::string decimals(double value, int places) {
+  char text[64];
+  std::snprintf(text, sizeof(text), "%.*f", places, value);
+  return text;
+}
+
+// id, the centre's map coordinates (full precision) in `crs`, its longitude and latitude
+// (7 decimals, about a centimetre), date, classes and probabilities (6 decimals).
 std::string predictions_csv(const Predictions& p, const ChipCollection& collection,
                             const std::vector<std::string>& classes) {
-  std::string text = "id,x,y,date,true,predicted";
+  std::string text = "id,x,y,crs,lon,lat,date,true,predicted";
   for (const auto& name : classes) text += ",p_" + csv_field(name);
   text += "\n";
+  ChipPlaces places(collection);
   for (std::size_t i = 0; i < p.chips.size(); ++i) {
     const ChipRecord r = collection.store(p.chips[i].store).record(p.chips[i].chip);
-    text += csv_field(r.source_id.empty() ? std::to_string(r.index) : r.source_id) + "," + metric_text(r.x) + "," +
-            metric_text(r.y) + "," + r.date + "," + csv_field(classes[p.truth[i]]) + "," +
-            csv_field(classes[p.predicted[i]]);
-    for (double probability : p.probabilities[i]) text += "," + metric_text(probability);
+    const ChipPlace place = places.of(p.chips[i]);
+    text += csv_field(r.source_id.empty() ? std::to_string(r.index) : r.source_id) + "," + fixed_text(place.x) + "," +
+            fixed_text(place.y) + "," + csv_field(place.crs) + "," +
+            (place.has_lonlat ? decimals(place.lon, 7) + "," + decimals(place.lat, 7) : std::string(",")) + "," +
+            r.date + "," + csv_field(classes[p.truth[i]]) + "," + csv_field(classes[p.predicted[i]]);
+    for (double probability : p.probabilities[i]) text += "," + decimals(probability, 6);
     text += "\n";
   }
   return text;

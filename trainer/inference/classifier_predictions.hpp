@@ -1,6 +1,7 @@
 // Applying a classifier to labelled chips: class probabilities per chip, and the files an
-// assessment writes: metrics.json, confusion.csv and predictions.csv (id, x, y, date,
-// true, predicted, one probability column per class), all atomically. Fine-tuning
+// assessment writes: metrics.json, confusion.csv and predictions.csv (id, x, y and the
+// CRS they are in, lon, lat, date, true, predicted, one probability column per class), all
+// atomically. Fine-tuning
 // (validation, test), assess, and later studies and maps use it.
 #pragma once
 
