@@ -152,3 +152,8 @@ add_executable(tinct_geotiff_tool tests/reference/geotiff_tool.cpp)
 target_link_libraries(tinct_geotiff_tool PRIVATE tinct_data)
 tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/geotiff_writer_vs_gdal.py $<TARGET_FILE:tinct_geotiff_tool>)
+
+# Splits and budgets checked from the outside in WGS 84 across Greenwich: blocks against
+# numpy.floor, the buffer against scipy's cdist, folds with GroupKFold's semantics, the budget
+# per class and the labelled chips read, split.seed, assess on the run's own store, one-class sides.
+tinct_script_test(reference_split_wgs84_vs_numpy ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/split_wgs84_vs_numpy.py)

@@ -15,6 +15,7 @@
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
+#include "util/log_capture.hpp"
 #include "util/progress.hpp"
 
 namespace tinct {

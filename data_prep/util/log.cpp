@@ -1,4 +1,5 @@
 #include "util/log.hpp"
+#include "util/log_capture.hpp"
 
 #include <unistd.h>
 

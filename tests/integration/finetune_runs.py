@@ -3,8 +3,10 @@ rule (class = the land cover under the site: wet ground has low NIR and SWIR).
 Fine-tuning beats chance (macro F1 0.5 for two classes) clearly, with a frozen
 encoder (linear probe) and with full fine-tuning; a scratch run and a pretrained run
 differ only in their init; assess on a store of the run's own test chips reproduces
-the run's test metrics (metrics.json) and predictions; the metrics in metrics.json equal scikit-learn's (Debian python3-sklearn 1.2) on
-predictions.csv; an encoder whose bands differ from the store's is refused."""
+the run's test metrics (metrics.json) and predictions, and so does assess on the run's own
+store (it scores the test chips only; --all scores all, with a warning); predictions.csv's
+lon, lat equal GDAL osr's transform of x, y; the metrics in metrics.json equal scikit-learn's
+(Debian python3-sklearn 1.2) on predictions.csv; an encoder whose bands differ from the store's is refused."""
 import csv
 import json
 import os
@@ -14,6 +16,7 @@ import tempfile
 
 import numpy as np
 import yaml
+from osgeo import osr
 from sklearn.metrics import cohen_kappa_score, f1_score
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
@@ -166,15 +169,37 @@ chips: {size: 16, min_valid: 0.9, block_size: 640}
 
     checks.check(without_init("full") == without_init("scratch"), "scratch and pretrained runs differ only in init")
 
-    # assess on the same store reproduces the test-fold figures only on those chips; here on all chips.
+    # assess on the run's own store scores only its test chips (split.csv), reproducing its test
+    # figures; --all scores every chip and says loudly that it includes training chips.
     run = tinct(work, "assess", "runs/full", "--on", "sites.labels", "--out", "assessed")
     checks.check(run.returncode == 0, "assess runs")
     assessed = json.load(open(os.path.join(work, "assessed", "metrics.json")))
-    with open(os.path.join(work, "assessed", "predictions.csv")) as f:
+    own_metrics = json.load(open(os.path.join(work, "runs", "full", "metrics.json")))
+    checks.check(assessed["count"] == own_metrics["count"] and abs(assessed["macro_f1"] - own_metrics["macro_f1"]) < 1e-9,
+                 f"assess on the run's own store scores its test chips only: {assessed['count']} vs {own_metrics['count']}")
+    run = tinct(work, "assess", "runs/full", "--on", "sites.labels", "--out", "assessed-all", "--all")
+    checks.check(run.returncode == 0 and "OPTIMISTIC" in run.stderr, "assess --all warns that it scores training chips")
+    assessed = json.load(open(os.path.join(work, "assessed-all", "metrics.json")))
+    with open(os.path.join(work, "assessed-all", "predictions.csv")) as f:
         rows = list(csv.DictReader(f))
-    checks.check(len(rows) == assessed["count"], "assess predicts every chip of the store")
+    with open(os.path.join(work, "sites.labels", "chips.csv")) as f:
+        store_count = sum(1 for _ in csv.DictReader(f))
+    checks.check(len(rows) == assessed["count"] == store_count, "assess --all predicts every chip of the store")
     checks.check(abs(f1_score([r["true"] for r in rows], [r["predicted"] for r in rows], average="macro") -
                      assessed["macro_f1"]) < 1e-9, "assess macro F1 equals scikit-learn's")
+
+    # predictions.csv: x, y in the store's CRS (named) and lon, lat as GDAL's osr transforms them.
+    utm, wgs84 = osr.SpatialReference(), osr.SpatialReference()
+    utm.ImportFromEPSG(32632)
+    wgs84.ImportFromEPSG(4326)
+    wgs84.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    utm.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    to_lonlat = osr.CoordinateTransformation(utm, wgs84)
+    checks.check(all(r["crs"] == "EPSG:32632" for r in rows), "predictions.csv names the store's CRS")
+    worst = max(max(abs(a - float(r[k])) for a, k in zip(to_lonlat.TransformPoint(float(r["x"]), float(r["y"]))[:2],
+                                                         ("lon", "lat"))) for r in rows)
+    checks.check(worst < 2e-7, f"lon, lat equal osr's transform of x, y (worst {worst:.2e} degrees)")
+    checks.check(all("e" not in r["x"] + r["y"] for r in rows), "map coordinates without exponents")
 
     # assess on exactly the run's test chips reproduces the run's test metrics and predictions.
     run_folder = os.path.join(work, "runs", "full")
