@@ -109,7 +109,7 @@ std::map<int, int> per_class(const tinct::ChipCollection& chips, const std::vect
 
 }  // namespace
 
-TEST_CASE("the buffer holds between training, validation and test, and keeps chips exactly at its distance") {
+TEST_CASE("the buffer holds between training and validation and test and keeps chips exactly at its distance") {
   TempFolder folder;
   // A projected-like local grid: 12 x 12 points 100 units apart, two classes.
   const tinct::ChipCollection chips({write_points(folder / "grid.labels", grid(12, 100, 50, 50, {"dry", "wet"}),
@@ -199,7 +199,7 @@ TEST_CASE("validation_fraction is honoured per class") {
   CHECK(share == Approx(0.3).margin(0.06));
 }
 
-TEST_CASE("the budget bounds training plus validation per class, and split.seed alone sets the test set") {
+TEST_CASE("the budget bounds training plus validation per class and split.seed alone sets the test set") {
   TempFolder folder;
   const std::vector<std::string> classes{"reed", "sedge", "water"};
   const tinct::ChipCollection chips(
@@ -248,7 +248,7 @@ TEST_CASE("the budget bounds training plus validation per class, and split.seed 
   CHECK(ids(tinct::split_labels(chips, settings).test) != ids(all.test));
 }
 
-TEST_CASE("every chip has exactly one role, and the folds partition the units as GroupKFold does") {
+TEST_CASE("every chip has exactly one role and the folds partition the units as GroupKFold does") {
   TempFolder folder;
   const tinct::ChipCollection chips(
       {write_points(folder / "grid.labels", grid(10, 100, 0, 0, {"dry", "wet"}), {"dry", "wet"}, "LOCAL_CS[\"t\"]")});
@@ -277,7 +277,7 @@ TEST_CASE("every chip has exactly one role, and the folds partition the units as
   CHECK(std::set<std::int64_t>(tested.begin(), tested.end()).size() == 100);
 }
 
-TEST_CASE("a side with fewer than two classes is refused, naming the side and the fold") {
+TEST_CASE("a side with fewer than two classes is refused naming the side and the fold") {
   TempFolder folder;
   // "wet" only in the block x >= 500: whichever fold holds it, training or test lacks it.
   std::vector<Point> points = grid(10, 100, 0, 0, {"dry"});
