@@ -295,8 +295,10 @@ TEST_CASE("a side with fewer than two classes is refused naming the side and the
       tinct::split_labels(chips, settings);
     } catch (const std::exception& e) {
       ++refused;
+      // Training or test with one class, or validation with none left that training can spare.
       CHECK_THAT(std::string(e.what()), Catch::Matchers::Contains("split of fold " + std::to_string(fold) + " holds") &&
-                               Catch::Matchers::Contains("one class only"));
+                                            (Catch::Matchers::Contains("one class only") ||
+                                             Catch::Matchers::Contains("no chips")));
     }
   }
   CHECK(refused == 2);
