@@ -6,13 +6,15 @@ differ only in their init; assess on a store of the run's own test chips reprodu
 the run's test metrics (metrics.json) and predictions, and so does assess on the run's own
 store (it scores the test chips only; --all scores all, with a warning); predictions.csv's
 lon, lat equal GDAL osr's transform of x, y; the metrics in metrics.json equal scikit-learn's
-(Debian python3-sklearn 1.2) on predictions.csv; an encoder whose bands differ from the store's is refused."""
+(Debian python3-sklearn 1.2) on predictions.csv; the label store holds label's log.txt with its per-class
+counts; an encoder whose bands differ from the store's is refused."""
 import csv
 import json
 import os
 import subprocess
 import sys
 import tempfile
+from collections import Counter
 
 import numpy as np
 import yaml
@@ -135,6 +137,14 @@ chips: {size: 16, min_valid: 0.9, block_size: 640}
         checks.check(run.returncode == 0, f"tinct {args[0]} {args[1]}: exit {run.returncode}")
         if run.returncode:
             checks.finish()
+
+    # label's own log.txt inside the store: what it logged, with the per-class counts of chips.csv.
+    store_log = open(os.path.join(work, "sites.labels", "log.txt")).read()
+    with open(os.path.join(work, "sites.labels", "chips.csv")) as f:
+        per_class = Counter(r["label"] for r in csv.DictReader(f))
+    for name in ("dry", "wet"):
+        checks.check(f"class {name}: {per_class[name]} kept" in store_log,
+                     f"the store's log.txt gives {per_class[name]} {name} chips")
 
     runs = {
         "probe": finetune_config(work, "probe", "{from: pretrain, run: runs/pre}", freeze="frozen"),
