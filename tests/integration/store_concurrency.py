@@ -65,6 +65,8 @@ def same_files(a, b):
     if names != sorted(os.listdir(b)):
         return False
     for name in names:
+        if name == "log.txt":
+            continue  # a label store's log (times, paths): present in both is enough
         with open(os.path.join(a, name), "rb") as fa, open(os.path.join(b, name), "rb") as fb:
             if fa.read() != fb.read():
                 return False
