@@ -199,7 +199,7 @@ with tempfile.TemporaryDirectory() as work:
                                          "checkpoints": {"every": 15}})
     run(work, "pretrain", config_path("pretrain.yaml"))
     pretrain_run = os.path.join(work, "demo-out", "runs", "aldery-pretrain")
-    for name in ("encoder.pt", "run.yaml", "previews/step-30.png"):
+    for name in ("encoder.pt", "run.yaml", "previews/step-00000030.png"):
         checks.check(os.path.exists(os.path.join(pretrain_run, name)), f"pretrain: {name}")
 
     stores = {}
@@ -231,7 +231,7 @@ with tempfile.TemporaryDirectory() as work:
                               os.path.join(work, "demo-out")], capture_output=True, text=True)
     print(summary.stdout, summary.stderr)
     checks.check(summary.returncode == 0, "demo_summary.py runs")
-    checks.check("macro F1" in summary.stdout and "previews/step-30.png" in summary.stdout,
+    checks.check("macro F1" in summary.stdout and "previews/step-00000030.png" in summary.stdout,
                  "the summary gives the fine-tune's metrics and the last preview")
     printed = " ".join(summary.stdout.split())
     checks.check("field confirmation" in printed and "public-health" in printed, "the summary's caution")
