@@ -84,8 +84,9 @@ def map_lines(out):
         for name in ("probabilities", "classes", "uncertainty", "aoa"):
             print(f"  {name + ':':15}{os.path.join(scene, name + '.tif')}")
         print(f"  {'quicklook:':15}{quicklook}")
-        print("  Grey cells were masked (cloud, shadow, no data): unknown, not absent. Cells outside the")
-        print("  area of applicability are where the model saw nothing like them in training.")
+        say("Cells with too few valid pixels (cloud, shadow, no data) are no data: unknown, not "
+            "absent. Outside the area of applicability (aoa.tif) the ground is unlike any training "
+            "chip: nothing tested the model there.", "  ")
 
 
 def previews(out):
