@@ -42,23 +42,23 @@ def sentences(value):
     return []
 
 
-def study_headlines(study):
-    """The study's findings in plain words: summary.json's findings, else the lines of
-    its terminal output between its findings heading and the next blank line."""
+def study_headlines(study, log):
+    """The study's findings in plain words: summary.json's findings where it has them,
+    else the lines of the study's terminal output (`log`) from its Findings heading up
+    to its caution, as printed."""
     summary = json.load(open(os.path.join(study, "summary.json")))
     for key in ("findings", "headlines", "sentences"):
         if key in summary and sentences(summary[key]):
-            return sentences(summary[key])
-    log = os.path.join(os.path.dirname(os.path.dirname(study)), "study.log")
+            return ["- " + sentence for sentence in sentences(summary[key])]
     lines, inside = [], False
     if os.path.exists(log):
-        for line in open(log):
-            if "finding" in line.lower():
+        for line in open(log, encoding="utf-8"):
+            if line.strip().lower() == "findings":
                 inside = True
-            elif inside and not line.strip():
+            elif inside and line.startswith("Caution"):
                 break
-            elif inside:
-                lines.append(line.strip())
+            elif inside and line.strip():
+                lines.append(line.rstrip())
     return lines
 
 
@@ -67,9 +67,9 @@ def study_lines(out):
     if not os.path.exists(os.path.join(study, "summary.json")):
         return
     print(f"== study: pretrained against scratch against pixel baselines ({study})")
-    headlines = study_headlines(study)
+    headlines = study_headlines(study, os.path.join(out, "study.log"))
     for sentence in headlines:
-        say(sentence, "  ")
+        print("  " + sentence if sentence.startswith(("- ", "  ")) else "  " + sentence + ":")  # a heading
     if not headlines:
         print(f"  (no findings found in summary.json; see {out}/study.log)")
     print(f"  report: {os.path.join(study, 'report.html')} (open it in a browser; no network needed)")

@@ -215,7 +215,9 @@ with tempfile.TemporaryDirectory() as work:
 
     if has_command("study"):
         study = patch(config_path("study-habitat.yaml"), {"seeds": [1], "budgets": [5]})
-        run(work, "study", config_path("study-habitat.yaml"))
+        result = run(work, "study", config_path("study-habitat.yaml"))
+        with open(os.path.join(work, "demo-out", "study.log"), "w") as f:
+            f.write(result.stdout)  # as demo.sh keeps it, for the summary's findings
         check_study(work, study)
     else:
         print("skipped: tinct study is not in this build; its outputs are not checked")
@@ -237,6 +239,7 @@ with tempfile.TemporaryDirectory() as work:
     checks.check("field confirmation" in printed and "public-health" in printed, "the summary's caution")
     if has_command("study"):
         checks.check("report.html" in summary.stdout, "the summary names the report")
+        checks.check("labels per class" in summary.stdout, "the summary gives the study's findings")
     if has_command("map"):
         checks.check("quicklook.png" in summary.stdout, "the summary names the quicklook")
 
