@@ -3,11 +3,14 @@
 # (examples/aldery-marsh, invented data): generate the scenes and field data, survey
 # a band file, pair the scenes with their composite colour and with the orthophoto,
 # pretrain on the pairs, cut both label sets into label stores, fine-tune a habitat
-# and a land-cover classifier from the pretrained encoder and from scratch, and print
-# their test metrics. Re-running skips every stage whose output is complete and whose
-# config and inputs did not change (an interrupted pretraining resumes); --fresh
-# starts over. Prints the time of each stage. TINCT_THREADS=N limits tinct's threads
-# (default: all cores), e.g. on a machine others are using.
+# and a land-cover classifier from the pretrained encoder, run the habitat study
+# (pretrained against scratch against two pixel baselines over seeds, label budgets
+# and spatial folds) and map habitat on one date. `tinct study` and `tinct map` run
+# only when the build has them. Re-running skips every stage whose output is complete
+# and whose config and inputs did not change (an interrupted pretraining or study
+# resumes); --fresh starts over. Prints the wall-clock and CPU time of each stage.
+# TINCT_THREADS=N limits tinct's threads (default: all cores), e.g. on a machine
+# others are using.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 [[ ${1:-} == --fresh ]] && rm -rf demo-out
@@ -32,24 +35,46 @@ stage() {
     return
   fi
   rm -f "$stamps/$name"
-  local start=$SECONDS
   echo "demo: $name: $*"
-  "$@"
+  local TIMEFORMAT="demo: $name took %0R s (CPU %0U s user, %0S s system)"
+  time "$@"
   echo "$print" > "$stamps/$name"
-  echo "demo: $name took $((SECONDS - start)) s"
+}
+
+# resumable NAME FINGERPRINT FOLDER FRESH_COMMAND RESUME_COMMAND: a long stage that can be
+# interrupted. With the same inputs as when it started it resumes; else it starts afresh.
+resumable() {
+  local name=$1 print=$2 folder=$3 fresh=$4 resume=$5
+  if [[ -d $folder && -f $stamps/$name.started && $(cat "$stamps/$name.started") == "$print" ]]; then
+    $resume
+  else
+    echo "$print" > "$stamps/$name.started"
+    $fresh
+  fi
 }
 
 # Pretraining resumes from its last checkpoint when it was interrupted with the same inputs.
-pretrain() {
-  local run=$out/runs/aldery-pretrain print=$1
-  if [[ -f $run/run.yaml && -f $stamps/pretrain.started && $(cat "$stamps/pretrain.started") == "$print" ]] &&
-     ls "$run"/checkpoints/* > /dev/null 2>&1; then
+pretrain_fresh() { $tinct pretrain "$example/pretrain.yaml" --force; }
+pretrain_resume() {
+  if ls "$out"/runs/aldery-pretrain/checkpoints/* > /dev/null 2>&1; then
     $tinct pretrain "$example/pretrain.yaml" --resume
   else
-    echo "$print" > "$stamps/pretrain.started"
-    $tinct pretrain "$example/pretrain.yaml" --force
+    pretrain_fresh
   fi
 }
+pretrain() { resumable pretrain "$1" "$out/runs/aldery-pretrain" pretrain_fresh pretrain_resume; }
+
+# A study skips the runs it finished before (same resolved config); with other inputs
+# (a new pretraining, other labels) its folder is removed first, since the runs' configs
+# name the same paths.
+study_fresh() { rm -rf "$out/studies/aldery-habitat"; study_resume; }
+study_resume() { $tinct study "$example/study-habitat.yaml" | tee "$out/study.log"; }
+study() { resumable study "$1" "$out/studies/aldery-habitat" study_fresh study_resume; }
+
+map() { rm -rf "$out/maps/aldery-habitat"; $tinct map "$example/map-habitat.yaml"; }
+
+# True when this build of tinct has the command (a command it lacks exits 2).
+has_command() { build/tinct "$1" --help > /dev/null 2>&1; }
 
 total=$SECONDS
 gen=$(fingerprint "$example/make_scenes.py" "$example"/aldery/*.py)
@@ -66,20 +91,25 @@ stage pretrain "$out/runs/aldery-pretrain/encoder.pt" "$pretrained" pretrain "$p
 for set in habitat landcover; do
   stage "label-$set" "$out/aldery-$set.labels/manifest.yaml" \
     "$(fingerprint "$example/label-$set.yaml" "$stamps/generate")" $tinct label "$example/label-$set.yaml" --force
-  for init in "" -scratch; do
-    config=$example/finetune-$set$init.yaml
-    run=$out/runs/aldery-$set${init:--pretrained}
-    stage "finetune-$set$init" "$run/metrics.json" \
-      "$(fingerprint "$config" "$stamps/label-$set" "$stamps/pretrain")" $tinct finetune "$config" --force
-  done
+  stage "finetune-$set" "$out/runs/aldery-$set-pretrained/metrics.json" \
+    "$(fingerprint "$example/finetune-$set.yaml" "$stamps/label-$set" "$stamps/pretrain")" \
+    $tinct finetune "$example/finetune-$set.yaml" --force
 done
 
-for run in aldery-habitat-pretrained aldery-habitat-scratch aldery-landcover-pretrained aldery-landcover-scratch; do
-  echo "== $run: test metrics ($out/runs/$run/metrics.json)"
-  /usr/bin/python3 -c 'import json,sys; m=json.load(open(sys.argv[1])); print("  macro F1 %.3f, kappa %.3f, accuracy %.3f on %d chips" % (m["macro_f1"], m["kappa"], m["accuracy"], m["count"]))' "$out/runs/$run/metrics.json"
-done
-echo "demo: one fold and one seed each; a difference between two such runs is not evidence either way."
-echo "demo: done in $((SECONDS - total)) s; stores and runs are in $out/ (previews of the pretraining in"
-echo "      $out/runs/aldery-pretrain/previews/, the generator's answer key in $out/aldery/truth/)"
-echo "demo: the data are invented; real maps guide surveillance planning only, and field confirmation"
-echo "      and the public-health authority's protocols come first."
+if has_command study; then
+  studied=$(fingerprint "$example/study-habitat.yaml" "$example/finetune-habitat.yaml" \
+    "$stamps/label-habitat" "$stamps/pretrain")
+  stage study "$out/studies/aldery-habitat/summary.json" "$studied" study "$studied"
+else
+  echo "demo: tinct study is not in this build, skipped"
+fi
+if has_command map; then
+  stage map "$out/maps/aldery-habitat/aldery-2026-06-14/quicklook.png" \
+    "$(fingerprint "$example/map-habitat.yaml" "$stamps/finetune-habitat")" map
+else
+  echo "demo: tinct map is not in this build, skipped"
+fi
+
+/usr/bin/python3 scripts/demo_summary.py "$out"
+times > "$out/.times"
+echo "demo: done in $((SECONDS - total)) s wall-clock, $(awk 'NR == 2 { gsub(/[ms]/, " "); printf "%.0f", $1 * 60 + $2 + $3 * 60 + $4 }' "$out/.times") s CPU (this run, the build check included)"

@@ -87,6 +87,11 @@ tinct_script_test(label_bad_input ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/int
 # example configs (examples/aldery-marsh).
 tinct_script_test(aldery_scenario ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/aldery_scenario.py)
 
+# The demo reduced to a few minutes (small district, few steps, one seed and budget): every
+# stage's outputs exist and agree; study and map are checked when the build has them.
+tinct_script_test(demo_reduced ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/demo_reduced.py)
+set_tests_properties(demo_reduced PROPERTIES LABELS "demo;integration" TIMEOUT 600)
+
 # tinct pretrain and export end to end.
 tinct_script_test(pretrain_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/pretrain_runs.py)
 tinct_script_test(reference_pretrain_l7_colour ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/pretrain_l7_colour.py)

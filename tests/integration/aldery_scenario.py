@@ -207,7 +207,7 @@ with tempfile.TemporaryDirectory() as work:
     # The pretrain and finetune configs read as their commands would; a two-step
     # pretraining gives the finetune configs a run to start from.
     run("pretrain", os.path.join(configs, "pretrain.yaml"), "--stop-after", "2", cwd=work)
-    for name in ("habitat", "habitat-scratch", "landcover", "landcover-scratch"):
+    for name in ("habitat", "landcover"):
         run("--quiet", "check", os.path.join(configs, f"finetune-{name}.yaml"), cwd=work)
 
 checks.finish()
