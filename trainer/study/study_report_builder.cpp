@@ -28,7 +28,7 @@ const char* freeze_name(FreezePolicy policy) {
 StudyArm deep_arm(const StudyArmConfig& arm, const FinetuneConfig& c) {
   StudyArm result;
   result.name = arm.name;
-  const std::string encoder = c.init.pretrain_run.empty() ? c.init.model.encoder : "the encoder of " +
+  const std::string encoder = c.init.pretrain_run.empty() ? c.init.model.encoder.name + " encoder" : "the encoder of " +
                                                                                        c.init.pretrain_run.filename().string();
   if (c.init.pretrained) {
     result.kind = c.freeze == FreezePolicy::frozen ? ArmKind::probe : ArmKind::pretrained;

@@ -2,6 +2,7 @@
 
 #include <cstdlib>
 #include <map>
+#include <tuple>
 
 #include "finetune/run_chips.hpp"
 #include "labels/csv_table.hpp"

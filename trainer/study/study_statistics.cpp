@@ -176,6 +176,16 @@ std::vector<ReliabilityBin> reliability_bins(const std::vector<int>& truth,
   return bins;
 }
 
+void add_counts(std::vector<std::vector<std::int64_t>>& sum, const std::vector<std::vector<std::int64_t>>& counts) {
+  if (sum.empty()) {
+    sum = counts;
+    return;
+  }
+  for (std::size_t r = 0; r < sum.size(); ++r) {
+    for (std::size_t c = 0; c < sum[r].size(); ++c) sum[r][c] += counts[r][c];
+  }
+}
+
 // Pooled over the runs of one arm at one budget: confusion counts and calibration.
 void add_pooled(const StudyPlan& plan, const CollectedStudy& study, const std::string& arm, std::size_t budget,
                 StudyStatistics& out) {
@@ -187,10 +197,7 @@ void add_pooled(const StudyPlan& plan, const CollectedStudy& study, const std::s
   for (const CollectedRun& run : study.runs) {
     const PlannedRun& p = planned(plan, run);
     if (p.arm != arm || p.cell.budget != budget) continue;
-    if (confusion.counts.empty()) confusion.counts = run.metrics.confusion;
-    else
-      for (std::size_t r = 0; r < confusion.counts.size(); ++r)
-        for (std::size_t c = 0; c < confusion.counts[r].size(); ++c) confusion.counts[r][c] += run.metrics.confusion[r][c];
+    add_counts(confusion.counts, run.metrics.confusion);
     truth.insert(truth.end(), run.test.truth.begin(), run.test.truth.end());
     before.insert(before.end(), run.test.probabilities.begin(), run.test.probabilities.end());
     after.insert(after.end(), run.calibration.calibrated.begin(), run.calibration.calibrated.end());
