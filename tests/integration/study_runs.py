@@ -208,7 +208,7 @@ def check_report(study):
             checks.check(True, "")
         except ElementTree.ParseError as error:
             checks.check(False, f"svg {i} parses as XML: {error}")
-    checks.check("http://" not in html.replace("http://www.w3.org/2000/svg", "") and "<script" not in html,
+    checks.check('src="http' not in html and "<link" not in html and "<script" not in html,
                  "report.html fetches nothing and has no script")
 
 
@@ -273,5 +273,18 @@ with tempfile.TemporaryDirectory() as work:
         run = tinct(work, "check", name)
         checks.check(run.returncode == code and (code == 0 or "allow_random" in run.stderr),
                      f"random split with '{allow.strip()}': exit {run.returncode} (expected {code}) {run.stderr[-300:]}")
+
+    # Refusals that `tinct check` reports before anything runs (exit 2, naming the key).
+    base = open(os.path.join(work, "study.yaml")).read()
+    for change, expected in (
+            (("{name: scratch, init:", "{name: scratch, budget: {per_class: 3}, init:"), "set by the study"),
+            (("ensemble: [pretrained, scratch]", "ensemble: [pretrained, nothing]"), "nothing"),
+            (("parallel: 2", "compare: [[pretrained, nothing]]"), "nothing"),
+            (("budgets: [5, all]", "budgets: [5, -1]"), "budget"),
+            (("folds: 2", "folds: 4"), "fold")):
+        open(os.path.join(work, "bad.yaml"), "w").write(base.replace(*change))
+        run = tinct(work, "check", "bad.yaml")
+        checks.check(run.returncode == 2 and expected in run.stderr,
+                     f"{change[1]}: refused with exit 2 mentioning '{expected}': {run.returncode} {run.stderr[-300:]}")
 
 checks.finish()
