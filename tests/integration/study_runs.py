@@ -98,7 +98,8 @@ def check_summary(study):
     for row in read_csv(os.path.join(study, "summary.csv")):
         values = [v for (arm, budget, _, _), v in f1.items() if arm == row["arm"] and budget == row["budget"]]
         mean, sd = np.mean(values), np.std(values, ddof=1)
-        low, high = stats.t.interval(0.95, len(values) - 1, loc=mean, scale=sd / np.sqrt(len(values)))
+        low, high = (stats.t.interval(0.95, len(values) - 1, loc=mean, scale=sd / np.sqrt(len(values)))
+                     if sd > 0 else (mean, mean))
         checks.check(len(values) == 4 and int(row["runs"]) == 4, f"{row['arm']} {row['budget']}: 4 runs")
         for key, expected in (("mean", mean), ("sd", sd), ("low", low), ("high", high)):
             checks.check(abs(float(row[f"macro_f1_{key}"]) - expected) < 1e-9,
