@@ -8,7 +8,8 @@ exact McNemar on predictions.csv, optimize.minimize_scalar for the temperature) 
 statsmodels 0.13 (multipletests holm); report.html parses and every <svg> parses as XML;
 a second run skips every run and writes the same summary; a study killed mid-way and run
 again runs only the missing runs and writes the same summary as the uninterrupted one; a
-random split is refused unless allow_random: true."""
+failing run is reported while the others are summarised; a random split and other bad
+configs are refused before anything runs."""
 import csv
 import glob
 import json
@@ -274,6 +275,27 @@ with tempfile.TemporaryDirectory() as work:
         run = tinct(work, "check", name)
         checks.check(run.returncode == code and (code == 0 or "allow_random" in run.stderr),
                      f"random split with '{allow.strip()}': exit {run.returncode} (expected {code}) {run.stderr[-300:]}")
+
+    # A failing run is reported and the study goes on: the other runs are summarised, exit 1.
+    with open(os.path.join(work, "broken.yaml"), "w") as f:
+        f.write("""config: study
+output: studies/broken
+finetune: ft.yaml
+arms:
+  - {name: scratch, init: {from: scratch, run: runs/pre}}
+  - {name: unstable, init: {from: scratch, run: runs/pre}, train: {lr: 1.0e+30}}
+baselines: []
+seeds: [1]
+budgets: [5]
+folds: 1
+""")
+    run = tinct(work, "study", "broken.yaml", threads=2)
+    broken = json.load(open(os.path.join(work, "studies", "broken", "summary.json")))
+    checks.check(run.returncode == 1 and "1 of 2 runs failed" in run.stderr, f"a failed run: exit {run.returncode}")
+    checks.check([r["arm"] for r in broken["runs"]] == ["scratch"] and
+                 [f["arm"] for f in broken["failed_runs"]] == ["unstable"] and
+                 "not finite" in broken["failed_runs"][0]["message"],
+                 f"the failed run is listed with its reason, the other one summarised: {broken['failed_runs']}")
 
     # Refusals that `tinct check` reports before anything runs (exit 2, naming the key).
     base = open(os.path.join(work, "study.yaml")).read()
