@@ -148,6 +148,8 @@ tinct_script_test(study_report_html ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/i
 tinct_script_test(study_report_render ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_report.py
   $<TARGET_FILE:tinct_sample_report> ${TINCT_TEST_DATA}/study_report_render --render)
 set_tests_properties(study_report_render PROPERTIES SKIP_RETURN_CODE 77)
+# tinct study end to end on generated data: summary files, paired design, SciPy's statistics, resume.
+tinct_script_test(study_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_runs.py)
 
 # --force replacement killed by strace at each of its steps; a store written onto a full tmpfs.
 tinct_script_test(store_replacement ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_replacement.py)

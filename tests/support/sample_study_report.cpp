@@ -131,7 +131,7 @@ StudyReport sample_study_report(const std::filesystem::path& preview_png) {
       {"logistic 3x3", ArmKind::baseline, "logistic regression on the 3 x 3 mean of the input bands"},
       {"random forest", ArmKind::baseline, "random forest on the label pixel's input bands"},
   };
-  LabelBudget five, fifteen, all;
+  StudyBudget five, fifteen, all;
   five.value = 5, fifteen.value = 15;
   all.kind = BudgetKind::all;
   all.labels_per_class_seen = 62;
@@ -177,7 +177,7 @@ StudyReport minimal_study_report() {
   report.name = "minimal";
   report.class_names = {"wet", "dry"};
   report.arms = {{"pretrained", ArmKind::pretrained, ""}, {"scratch", ArmKind::scratch, ""}};
-  LabelBudget quarter, all;
+  StudyBudget quarter, all;
   quarter.kind = BudgetKind::fraction, quarter.value = 0.25;
   all.kind = BudgetKind::all;
   report.budgets = {quarter, all};

@@ -19,8 +19,8 @@ using namespace tinct;
 
 namespace {
 
-LabelBudget per_class(double n) {
-  LabelBudget budget;
+StudyBudget per_class(double n) {
+  StudyBudget budget;
   budget.value = n;
   return budget;
 }
@@ -145,7 +145,7 @@ TEST_CASE("numbers print as the report needs") {
 }
 
 TEST_CASE("budgets read in words") {
-  LabelBudget fraction, all;
+  StudyBudget fraction, all;
   fraction.kind = BudgetKind::fraction, fraction.value = 0.25;
   all.kind = BudgetKind::all;
   CHECK(budget_label(per_class(10)) == "10 labels per class");

@@ -27,6 +27,8 @@ const tinct::CommandEntry kCommands[] = {
     {"finetune", "Fine-tune a classifier on a label store, from a pretrain run or from scratch",
      tinct::setup_finetune},
     {"assess", "Apply a finetune run to a label store and write its metrics", tinct::setup_assess},
+    {"study", "Compare arms (pretrained, scratch, pixel baselines) over label budgets, seeds and folds, with a report",
+     tinct::setup_study},
     {"export", "Write a pretrained encoder as safetensors for other tools", tinct::setup_export},
     {"check", "Validate a config without running it and print it with every default filled in",
      tinct::setup_check},

@@ -115,7 +115,7 @@ std::string comparison_clause(const PairedComparison& c, double alpha) {
   return "";
 }
 
-std::string comparison_sentence(const PairedComparison& c, const LabelBudget& budget, double alpha) {
+std::string comparison_sentence(const PairedComparison& c, const StudyBudget& budget, double alpha) {
   return capitalised(budget_phrase(budget)) + ", " + comparison_clause(c, alpha);
 }
 

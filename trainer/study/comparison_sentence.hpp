@@ -26,7 +26,7 @@ std::optional<double> deciding_p(const PairedComparison& comparison);
 
 // "With 10 labels per class, pretrained beats scratch by 0.08 macro F1 (95 % interval 0.03
 // to 0.13, Wilcoxon p = 0.004, 12 paired runs)."
-std::string comparison_sentence(const PairedComparison& comparison, const LabelBudget& budget,
+std::string comparison_sentence(const PairedComparison& comparison, const StudyBudget& budget,
                                 double alpha = kAlpha);
 
 // The same without the budget: "pretrained beats scratch by 0.08 macro F1 (...)."

@@ -38,7 +38,7 @@ const PairedComparison* comparison_with(const StudyReport& report, const std::st
 }  // namespace
 
 std::string ensemble_sentence(const StudyReport& report, const EnsembleDiversity& d) {
-  const LabelBudget& budget = report.budgets[d.budget];
+  const StudyBudget& budget = report.budgets[d.budget];
   std::string text = capitalised(budget_phrase(budget)) + ", exactly one member of " + d.ensemble +
                      " (" + list_text(d.members) + ") is wrong on " +
                      percent_text(d.exactly_one_wrong) + " of " + std::to_string(d.test_chips) +

@@ -52,7 +52,7 @@ class TextTable {
 std::string optional_p(const std::optional<double>& p) { return p ? p_text(*p) : "-"; }
 
 // "5 per class", "25 %", "all": short enough for a column.
-std::string budget_column(const LabelBudget& budget) {
+std::string budget_column(const StudyBudget& budget) {
   return budget.kind == BudgetKind::per_class ? budget_short(budget) + " per class" : budget_short(budget);
 }
 

@@ -137,7 +137,7 @@ std::string metric_name(Metric metric) {
 
 bool higher_is_better(Metric metric) { return metric != Metric::ece; }
 
-std::string budget_short(const LabelBudget& budget) {
+std::string budget_short(const StudyBudget& budget) {
   switch (budget.kind) {
     case BudgetKind::per_class: return count_text(budget.value);
     case BudgetKind::fraction: return percent_text(budget.value);
@@ -146,7 +146,7 @@ std::string budget_short(const LabelBudget& budget) {
   return "?";
 }
 
-std::string budget_label(const LabelBudget& budget) {
+std::string budget_label(const StudyBudget& budget) {
   switch (budget.kind) {
     case BudgetKind::per_class:
       return count_text(budget.value) + (budget.value == 1 ? " label per class" : " labels per class");
@@ -156,7 +156,7 @@ std::string budget_label(const LabelBudget& budget) {
   return "?";
 }
 
-std::string budget_phrase(const LabelBudget& budget) {
+std::string budget_phrase(const StudyBudget& budget) {
   switch (budget.kind) {
     case BudgetKind::per_class: return "with " + budget_label(budget);
     case BudgetKind::fraction: return "with " + percent_text(budget.value) + " of the labels";
@@ -165,7 +165,7 @@ std::string budget_phrase(const LabelBudget& budget) {
   return "?";
 }
 
-std::optional<double> labels_per_class(const LabelBudget& budget) {
+std::optional<double> labels_per_class(const StudyBudget& budget) {
   if (budget.kind == BudgetKind::per_class && budget.value > 0) return budget.value;
   if (budget.labels_per_class_seen > 0) return budget.labels_per_class_seen;
   return std::nullopt;

@@ -24,7 +24,7 @@ struct StudyArm {
   std::string description;  // one line: init, head, freeze policy, inputs
 };
 
-struct LabelBudget {
+struct StudyBudget {
   BudgetKind kind = BudgetKind::per_class;
   double value = 0;  // labels per class, or a fraction in (0, 1]; unused for `all`
   // Mean training labels per class the runs at this budget saw (0: unknown). Places
@@ -136,7 +136,7 @@ struct StudyReport {
   std::vector<std::string> warnings;  // e.g. random split: spatial autocorrelation
   std::vector<std::string> class_names;
   std::vector<StudyArm> arms;
-  std::vector<LabelBudget> budgets;  // in increasing order of labels
+  std::vector<StudyBudget> budgets;  // in increasing order of labels
   std::vector<RunScore> runs;
   std::vector<FailedRun> failed_runs;
   std::string summary_interval;  // how Summary::low/high were made, e.g. "t interval over runs"
@@ -162,10 +162,10 @@ bool is_baseline(const StudyReport& report, const std::string& arm);
 std::string arm_kind_name(ArmKind kind);        // "pretrained", "scratch", ...
 std::string metric_name(Metric metric);          // "macro F1", "ECE", ...
 bool higher_is_better(Metric metric);
-std::string budget_short(const LabelBudget& budget);   // "10", "25 %", "all"
-std::string budget_label(const LabelBudget& budget);   // "10 labels per class", "25 % of labels"
-std::string budget_phrase(const LabelBudget& budget);  // "with 10 labels per class"
+std::string budget_short(const StudyBudget& budget);   // "10", "25 %", "all"
+std::string budget_label(const StudyBudget& budget);   // "10 labels per class", "25 % of labels"
+std::string budget_phrase(const StudyBudget& budget);  // "with 10 labels per class"
 // Position on a labels-per-class axis; nullopt when unknown.
-std::optional<double> labels_per_class(const LabelBudget& budget);
+std::optional<double> labels_per_class(const StudyBudget& budget);
 
 }  // namespace tinct

@@ -1,0 +1,226 @@
+#include "study/study_execution.hpp"
+
+#include <algorithm>
+#include <chrono>
+#include <cstdio>
+
+#include <yaml-cpp/yaml.h>
+
+#include "finetune/run_chips.hpp"
+#include "inference/saved_classifier_predictions.hpp"
+#include "runs/run_folder.hpp"
+#include "study/child_runs.hpp"
+#include "study/prediction_table.hpp"
+#include "util/atomic_file.hpp"
+#include "util/error.hpp"
+#include "util/log.hpp"
+#include "util/progress.hpp"
+#include "util/sha256.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+// Done, with the same config and its test predictions (the validation ones may be missing
+// when the study stopped right after the run).
+bool run_finished(const fs::path& run, const std::string& hash) {
+  return RunFolder::recorded_status(run) == "done" && fs::exists(run / "config.resolved.yaml") &&
+         sha256_file(run / "config.resolved.yaml") == hash && fs::exists(run / "predictions.csv");
+}
+
+bool finished_with(const fs::path& run, const std::string& hash) {
+  return run_finished(run, hash) && fs::exists(run / "validation" / "predictions.csv");
+}
+
+std::string recorded_reason(const fs::path& run) {
+  try {
+    const YAML::Node node = YAML::LoadFile((run / "run.yaml").string());
+    return node["reason"] ? node["reason"].as<std::string>() : "";
+  } catch (const std::exception&) {
+    return "";
+  }
+}
+
+Predictions as_predictions(const BaselinePredictions& p, std::size_t from, std::size_t to) {
+  Predictions result;
+  result.chips.assign(p.chips.begin() + from, p.chips.begin() + to);
+  result.truth.assign(p.truth.begin() + from, p.truth.begin() + to);
+  result.predicted.assign(p.predicted.begin() + from, p.predicted.begin() + to);
+  result.probabilities.assign(p.probabilities.begin() + from, p.probabilities.begin() + to);
+  return result;
+}
+
+// A pixel baseline on the cell's chips: test and validation chips predicted in one go.
+void run_baseline_run(const PlannedRun& run, const fs::path& folder) {
+  RunChips chips = run_chips(run.finetune);
+  std::vector<ChipRef> scored = chips.split.test;
+  scored.insert(scored.end(), chips.split.validation.begin(), chips.split.validation.end());
+  BaselineSettings settings;
+  settings.kind = run.baseline;
+  settings.seed = static_cast<std::uint64_t>(run.cell.seed);
+  RunFolder out(folder, {true, false});
+  out.write_config(run.config_text);
+  out.write_status(RunStatus::running, run.cell.seed);
+  const BaselinePredictions predicted = run_baseline(chips.chips, chips.train, scored, settings);
+  const std::size_t tests = chips.split.test.size();
+  write_assessment(folder, as_predictions(predicted, 0, tests), chips.chips, chips.chips.classes());
+  write_assessment(folder / "validation", as_predictions(predicted, tests, scored.size()), chips.chips,
+                   chips.chips.classes());
+  out.write_status(RunStatus::done, run.cell.seed);
+}
+
+// The finished fine-tune's model on its validation chips, for temperature scaling.
+void write_validation(const PlannedRun& run, const fs::path& folder) {
+  RunChips chips = run_chips(run.finetune);
+  const SavedClassifierPredictions predicted = predict_with_saved_classifier(
+      folder / "model.pt", chips.chips, chips.split.validation, run.finetune.train.batch);
+  write_assessment(folder / "validation", predicted.predictions, chips.chips, predicted.classes);
+}
+
+PredictionTable weighted_mean(const std::vector<PredictionTable>& members, const std::vector<double>& weights,
+                              const std::vector<std::string>& names) {
+  PredictionTable mean = members.front();
+  for (std::size_t m = 1; m < members.size(); ++m) {
+    if (members[m].ids != mean.ids || members[m].classes != mean.classes) {
+      fail_runtime("ensemble members " + names.front() + " and " + names[m] + " were scored on different chips "
+                   "or classes; an ensemble needs arms on the same label store and split");
+    }
+  }
+  for (std::size_t i = 0; i < mean.size(); ++i) {
+    for (std::size_t k = 0; k < mean.classes.size(); ++k) {
+      double p = 0;
+      for (std::size_t m = 0; m < members.size(); ++m) p += weights[m] * members[m].probabilities[i][k];
+      mean.probabilities[i][k] = p;
+    }
+  }
+  return mean;
+}
+
+void run_ensemble_run(const StudyPlan& plan, const PlannedRun& run, const fs::path& folder) {
+  RunFolder out(folder, {true, false});
+  out.write_config(run.config_text);
+  out.write_status(RunStatus::running, run.cell.seed);
+  for (const std::string part : {"", "validation"}) {
+    std::vector<PredictionTable> members;
+    std::vector<std::string> names;
+    for (const std::size_t m : run.members) {
+      members.push_back(read_prediction_table(plan.folder / plan.runs[m].folder / part / "predictions.csv"));
+      names.push_back(plan.runs[m].arm);
+    }
+    write_prediction_files(folder / part, weighted_mean(members, run.weights, names));
+  }
+  out.write_status(RunStatus::done, run.cell.seed);
+}
+
+// Baselines and ensembles run here, quickly; a failure is the run's, not the study's.
+void run_here(const StudyPlan& plan, std::size_t index, const StudyExecution& options, std::vector<RunState>& states) {
+  const PlannedRun& run = plan.runs[index];
+  const fs::path folder = plan.folder / run.folder;
+  RunState& state = states[index];
+  if (!options.force && finished_with(folder, run.hash)) {
+    state.ok = state.skipped = true;
+    return;
+  }
+  for (const std::size_t m : run.members) {
+    if (!states[m].ok) {
+      state.message = "member " + plan.runs[m].arm + " failed";
+      return;
+    }
+  }
+  try {
+    if (run.kind == PlannedKind::baseline) run_baseline_run(run, folder);
+    if (run.kind == PlannedKind::ensemble) run_ensemble_run(plan, run, folder);
+    state.ok = true;
+  } catch (const std::exception& error) {
+    state.message = error.what();
+  }
+  log::set_file(plan.folder / "log.txt");  // the run folder took the log file over
+  if (!state.ok) log::warning("study: " + run_label(plan.config, run.arm, run.cell) + " failed: " + state.message);
+}
+
+ChildJob finetune_job(const StudyPlan& plan, const PlannedRun& run, int threads) {
+  const fs::path folder = plan.folder / run.folder;
+  const fs::path config = folder.string() + ".yaml";
+  fs::create_directories(folder.parent_path());
+  write_file_atomic(config, run.config_text);
+  return {{"--threads", std::to_string(threads), "finetune", config.string(), "--force"}, folder.string() + ".log"};
+}
+
+void finish_finetune(const StudyPlan& plan, const PlannedRun& run, const ChildExit& exit, RunState& state) {
+  const fs::path folder = plan.folder / run.folder;
+  if (!exit.ok()) {
+    const std::string reason = recorded_reason(folder);
+    state.message = (reason.empty() ? last_error_line(folder.string() + ".log") : reason) + " (" + exit.describe() +
+                    "; log " + (run.folder.string() + ".log") + ")";
+    return;
+  }
+  try {
+    write_validation(run, folder);
+    state.ok = true;
+  } catch (const std::exception& error) {
+    state.ok = false;
+    state.message = std::string("applying the model to the validation chips failed: ") + error.what();
+  }
+  log::set_file(plan.folder / "log.txt");
+}
+
+void run_finetunes(const StudyPlan& plan, const StudyExecution& options, std::vector<RunState>& states,
+                   ExecutionCounts& counts) {
+  std::vector<std::size_t> todo;
+  for (std::size_t i = 0; i < plan.runs.size(); ++i) {
+    const PlannedRun& run = plan.runs[i];
+    if (run.kind != PlannedKind::deep) continue;
+    const fs::path folder = plan.folder / run.folder;
+    if (!options.force && run_finished(folder, run.hash)) {
+      states[i].ok = true;
+      if (!fs::exists(folder / "validation" / "predictions.csv")) finish_finetune(plan, run, ChildExit{}, states[i]);
+      states[i].skipped = states[i].ok;
+      ++(states[i].ok ? counts.skipped : counts.failed);
+    } else {
+      todo.push_back(i);
+    }
+  }
+  if (counts.skipped) log::info("study: " + std::to_string(counts.skipped) + " fine-tunes finished before, skipped");
+  if (todo.empty()) return;
+  const int parallel = std::max(1, std::min(plan.config.parallel, static_cast<int>(todo.size())));
+  const int threads = std::max(1, options.threads / parallel);
+  log::info("study: " + std::to_string(todo.size()) + " fine-tunes to run, " + std::to_string(parallel) +
+            " at once with " + std::to_string(threads) + " thread" + (threads > 1 ? "s" : "") + " each");
+  std::vector<ChildJob> jobs;
+  for (const std::size_t i : todo) jobs.push_back(finetune_job(plan, plan.runs[i], threads));
+  Progress progress("study", static_cast<std::int64_t>(todo.size()), "fine-tunes");
+  const auto start = std::chrono::steady_clock::now();
+  int done = 0;
+  run_children(self_executable(), jobs, parallel, [&](std::size_t job, const ChildExit& exit) {
+    const std::size_t i = todo[job];
+    finish_finetune(plan, plan.runs[i], exit, states[i]);
+    const std::string label = run_label(plan.config, plan.runs[i].arm, plan.runs[i].cell);
+    if (states[i].ok) {
+      ++counts.ran;
+      log::write_file_only(log::Level::info, "study: " + label + " done");
+    } else {
+      ++counts.failed;
+      log::warning("study: " + label + " failed: " + states[i].message);
+    }
+    progress.update(++done, label);
+  });
+  progress.finish();
+  counts.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+}
+
+}  // namespace
+
+std::vector<RunState> execute_study(const StudyPlan& plan, const StudyExecution& options, ExecutionCounts& counts) {
+  std::vector<RunState> states(plan.runs.size());
+  for (std::size_t i = 0; i < plan.runs.size(); ++i) {
+    if (plan.runs[i].kind == PlannedKind::baseline) run_here(plan, i, options, states);
+  }
+  run_finetunes(plan, options, states, counts);
+  for (std::size_t i = 0; i < plan.runs.size(); ++i) {
+    if (plan.runs[i].kind == PlannedKind::ensemble) run_here(plan, i, options, states);
+  }
+  return states;
+}
+
+}  // namespace tinct
