@@ -15,7 +15,7 @@ namespace tinct {
 struct RunChips {
   ChipCollection chips;
   LabelSplit split;
-  std::vector<ChipRef> train;  // split.train within the label budget
+  std::vector<ChipRef> train;  // split.train: the budgeted labels less the validation carved from them
 };
 
 RunChips run_chips(const FinetuneConfig& config);

@@ -9,10 +9,13 @@ namespace fs = std::filesystem;
 namespace tinct {
 namespace {
 
-void set_budget(YAML::Node config, const StudyBudget& budget) {
+// The study's seed also draws the budgeted labels (budget.seed), so seeds vary which labels a
+// run sees as well as its training; split.seed stays fixed, so every seed has the same test sets.
+void set_budget(YAML::Node config, const StudyBudget& budget, int seed) {
   config.remove("budget");
   if (budget.kind == BudgetKind::per_class) config["budget"]["per_class"] = static_cast<int>(budget.value);
   if (budget.kind == BudgetKind::fraction) config["budget"]["fraction"] = budget.value;
+  config["budget"]["seed"] = seed;
 }
 
 std::string source_name(const StudyConfig& study, const StudyArmConfig* arm) {
@@ -33,7 +36,7 @@ StudyRunConfig study_run_config(const StudyConfig& study, const YAML::Node& base
                                 const StudyCell& cell, const fs::path& output) {
   YAML::Node config = merged_config(base, arm ? arm->overrides : YAML::Node());
   config["output"] = output.string();
-  set_budget(config, study.budgets[cell.budget]);
+  set_budget(config, study.budgets[cell.budget], cell.seed);
   config["split"]["fold"] = cell.fold;
   config["train"]["seed"] = cell.seed;
 
