@@ -110,6 +110,7 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   budget.finish();
   read_train(root.section("train"), config);
   config.split = read_split(root.section("split"), config.train.seed);
+  config.distributed = read_distributed_settings(root.section("distributed"));
   return config;
 }
 
