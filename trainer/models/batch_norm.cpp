@@ -31,10 +31,34 @@ struct ProcessSumFunction : torch::autograd::Function<ProcessSumFunction> {
 
 }  // namespace
 
+SyncableBatchNorm2dImpl::SyncableBatchNorm2dImpl(std::int64_t channels_, double eps_, double momentum_)
+    : channels(channels_), eps(eps_), momentum(momentum_) {
+  reset();
+}
+
+void SyncableBatchNorm2dImpl::reset() {
+  // The names and order of torch's BatchNorm2d: checkpoints and optimiser state match.
+  weight = register_parameter("weight", torch::ones({channels}));
+  bias = register_parameter("bias", torch::zeros({channels}));
+  running_mean = register_buffer("running_mean", torch::zeros({channels}));
+  running_var = register_buffer("running_var", torch::ones({channels}));
+  num_batches_tracked = register_buffer("num_batches_tracked", torch::tensor(0, torch::kLong));
+}
+
+void SyncableBatchNorm2dImpl::pretty_print(std::ostream& stream) const {
+  stream << "tinct::SyncableBatchNorm2d(" << channels << ", eps=" << eps << ", momentum=" << momentum
+         << (sum_ ? ", synchronised)" : ")");
+}
+
 torch::Tensor SyncableBatchNorm2dImpl::forward(const torch::Tensor& input) {
-  if (!sum_ || !is_training()) return torch::nn::BatchNorm2dImpl::forward(input);
-  _check_input_dim(input);
-  const std::int64_t channels = input.size(1);
+  TORCH_CHECK(input.dim() == 4, "expected a 4-D input (B, C, H, W), got ", input.dim(), "-D");
+  if (sum_ && is_training()) return synchronised_forward(input);
+  if (is_training()) num_batches_tracked += 1;  // as torch's BatchNorm2d, which never reads it back here
+  return torch::batch_norm(input, weight, bias, running_mean, running_var, is_training(), momentum, eps,
+                           at::globalContext().userEnabledCuDNN());
+}
+
+torch::Tensor SyncableBatchNorm2dImpl::synchronised_forward(const torch::Tensor& input) {
   const std::vector<std::int64_t> reduced{0, 2, 3}, shape{1, channels, 1, 1};
   torch::Tensor count = torch::full({1}, static_cast<double>(input.numel() / channels), torch::kFloat64);
   sum_(count);
@@ -44,28 +68,23 @@ torch::Tensor SyncableBatchNorm2dImpl::forward(const torch::Tensor& input) {
   const torch::Tensor mean = ProcessSumFunction::apply(x.sum(reduced), &sum_) / n;
   const torch::Tensor centred = x - mean.view(shape);
   const torch::Tensor variance = ProcessSumFunction::apply(centred.pow(2).sum(reduced), &sum_) / n;
-  torch::Tensor output = (centred * torch::rsqrt(variance + options.eps()).view(shape)).to(input.scalar_type());
-  if (options.affine()) output = output * weight.view(shape) + bias.view(shape);
-  if (options.track_running_stats()) {
+  const torch::Tensor normalised = (centred * torch::rsqrt(variance + eps).view(shape)).to(input.scalar_type());
+  {
     torch::NoGradGuard no_grad;
     num_batches_tracked += 1;
-    const double momentum = options.momentum() ? *options.momentum()
-                                               : 1.0 / num_batches_tracked.item<double>();
     running_mean.mul_(1 - momentum).add_(mean.to(running_mean.scalar_type()) * momentum);
     const torch::Tensor unbiased = variance * (n / std::max(n - 1, 1.0));
     running_var.mul_(1 - momentum).add_(unbiased.to(running_var.scalar_type()) * momentum);
   }
-  return output;
+  return normalised * weight.view(shape) + bias.view(shape);
 }
 
-SyncableBatchNorm2d batch_norm_2d(std::int64_t channels) {
-  return SyncableBatchNorm2d(torch::nn::BatchNormOptions(channels).eps(1e-5).momentum(0.1));
-}
+SyncableBatchNorm2d batch_norm_2d(std::int64_t channels) { return SyncableBatchNorm2d(channels); }
 
 void synchronise_batch_norm(torch::nn::Module& model, const ProcessSum& sum) {
-  for (const auto& module : model.modules(/*include_self=*/true)) {
-    if (auto* norm = module->as<SyncableBatchNorm2dImpl>()) norm->synchronise(sum);
-  }
+  model.apply([&sum](torch::nn::Module& module) {
+    if (auto* norm = module.as<SyncableBatchNorm2dImpl>()) norm->synchronise(sum);
+  });
 }
 
 }  // namespace tinct
