@@ -7,7 +7,7 @@
 Rounds interleave the configurations so that drifts of a shared machine hit both alike;
 best and median over the rounds are printed. Print-only: nothing fails on a slow machine.
 
-usage: data_parallel_bench.py TINCT ALLREDUCE_BENCH WORK [ROUNDS]"""
+usage: data_parallel_bench.py TINCT ALLREDUCE_BENCH WORK [ROUNDS [STEPS]]"""
 import csv
 import os
 import re
@@ -21,7 +21,9 @@ from pair_bench import make_scene  # noqa: E402
 TINCT, ALLREDUCE, WORK = sys.argv[1], sys.argv[2], sys.argv[3]
 ROUNDS = int(sys.argv[4]) if len(sys.argv) > 4 else 3
 BANDS = "[B01, B02, B03, B04, B05, B06, B07, B08, B8A, B09, B11, B12]"
-BATCH, STEPS = 32, 40
+BATCH = 32
+STEPS = int(sys.argv[5]) if len(sys.argv) > 5 else 40
+LOG_EVERY = max(1, STEPS // 8)
 
 # The pretrain bench's store when it is there (same chips), else one scene of its own.
 STORE = "big.pairs" if os.path.exists(os.path.join(WORK, "big.pairs")) else "dp.pairs"
@@ -46,7 +48,7 @@ with open(config, "w") as f:
 stores: [{STORE}]
 output: runs/dp
 model: {{encoder: compact}}
-train: {{steps: {STEPS}, batch: {BATCH}, warmup: 5, log_every: 5}}
+train: {{steps: {STEPS}, batch: {BATCH}, warmup: 5, log_every: {LOG_EVERY}}}
 validation: {{every: 0, chips: 64, previews: 0}}
 checkpoints: {{every: 1000, keep: 1}}
 """)
