@@ -344,6 +344,11 @@ FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& opti
     Finetuning model = build_model(c, data);
     EpochState state = options.resume ? restore(run, model, data) : EpochState{};
     parallel.prepare(*model.model);
+    // The head's dropout draws from torch's generator, seeded alike everywhere: without this
+    // every rank would drop the same units of its slice. Seeded by rank and by the step the
+    // job starts from (a resumed job draws other masks than an uninterrupted one would).
+    if (!parallel.single()) torch::manual_seed(c.train.seed + 7919 * static_cast<std::uint64_t>(parallel.rank() + 1) +
+                                               static_cast<std::uint64_t>(state.step));
     const RunOutcome outcome = train_epochs(model, state, data, c, run, options.stop_after, parallel);
     if (outcome.status != RunStatus::done) {
       result.status = outcome.status;
