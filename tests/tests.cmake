@@ -105,6 +105,8 @@ tinct_script_test(reference_safetensors_vs_numpy ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/safetensors_vs_numpy.py $<TARGET_FILE:tinct_safetensors_tool>)
 tinct_script_test(finetune_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/finetune_runs.py)
 tinct_script_test(finetune_resume ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/finetune_resume.py)
+# tinct pretrain --world 2: a killed rank stops the job with a clear error; --resume on one process.
+tinct_script_test(data_parallel_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/data_parallel_runs.py)
 tinct_script_test(reference_finetune_l7_index_rule
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/finetune_l7_index_rule.py)
 set_tests_properties(reference_finetune_l7_index_rule PROPERTIES FIXTURES_REQUIRED debian_data)

@@ -2,6 +2,7 @@
 #include "cli/commands.hpp"
 #include "finetune/finetune_config.hpp"
 #include "finetune/finetune_job.hpp"
+#include "training/parallel_launch.hpp"
 #include "runs/torch_runtime.hpp"
 #include "util/config_node.hpp"
 
@@ -10,6 +11,7 @@ namespace tinct {
 struct FinetuneCommandOptions {
   std::string config;
   bool force = false;
+  int world = 0;  // --world: local processes of one data-parallel job
   bool resume = false;
   int stop_after = 0;
 };
@@ -19,12 +21,16 @@ static void run_finetune_command(const FinetuneCommandOptions& options, const Gl
   root.choice("config", {"finetune"});
   const FinetuneConfig config = read_finetune_config(root);
   root.finish();
-  if (global.threads == 0 && config.train.threads > 0) configure_threads(config.train.threads);
+  if (run_as_local_ranks(options.world)) return;
+  const auto parallel =
+      join_data_parallel(config.distributed, options.world, global.threads > 0 ? global.threads : config.train.threads);
+  if (!parallel && global.threads == 0 && config.train.threads > 0) configure_threads(config.train.threads);
   FinetuneOptions job;
   job.force = options.force;
   job.resume = options.resume;
   job.stop_after = options.stop_after;
   job.resolved_config = resolved_text(root);
+  job.parallel = parallel.get();
   run_finetune(config, job);
 }
 
@@ -36,6 +42,11 @@ CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global) {
   resume->excludes(force);
   command.add_option("--stop-after", options->stop_after,
                      "Stop after this many epochs in all (with a checkpoint); --resume continues")
+      ->check(CLI::PositiveNumber);
+  command.add_option("--world", options->world,
+                     "Run as this many processes of one data-parallel job on this machine (loopback); "
+                     "train.batch stays the global batch. Under srun or with RANK/WORLD_SIZE/MASTER_ADDR set, "
+                     "each process joins the job without it")
       ->check(CLI::PositiveNumber);
   return [options, &global] { run_finetune_command(*options, global); };
 }

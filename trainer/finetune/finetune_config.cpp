@@ -126,6 +126,7 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   read_train(root.section("train"), config);
   config.split = read_split(root.section("split"));
   config.budget = read_budget(root, config.split.seed);
+  config.distributed = read_distributed_settings(root.section("distributed"));
   return config;
 }
 

@@ -11,6 +11,7 @@
 
 #include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
+#include "distributed/distributed_settings.hpp"
 #include "models/model_spec.hpp"
 #include "training/train_settings.hpp"
 #include "util/config_node.hpp"
@@ -42,6 +43,7 @@ struct FinetuneConfig {
   TrainSettings train;
   int epochs = 50;    // at most
   int patience = 10;  // epochs without a better validation macro F1 before stopping
+  DistributedSettings distributed;  // distributed: how the processes of a data-parallel job meet
 };
 
 // Fine-tuning's own defaults for the shared train keys: batch 16, lr 1e-3, weight_decay

@@ -6,10 +6,12 @@
 
 #include "batches/batch_loader.hpp"
 #include "inference/split_table.hpp"
+#include "distributed/shard.hpp"
 #include "runs/checkpoint.hpp"
 #include "runs/classifier_artifact.hpp"
 #include "runs/encoder_artifact.hpp"
 #include "runs/metrics_log.hpp"
+#include "training/data_parallel.hpp"
 #include "training/lr_schedule.hpp"
 #include "training/optimizer.hpp"
 #include "training/run_lifecycle.hpp"
@@ -147,7 +149,8 @@ Finetuning build_model(const FinetuneConfig& c, const FinetuneData& data) {
 // ---- checkpoints
 
 void save_state(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const EpochState& state,
-                const MetricsLog& metrics) {
+                const MetricsLog& metrics, DataParallel& parallel) {
+  parallel.agree_buffers(*f.model);
   if (!run.is_writer()) return;
   const auto folder = run.folder().file("checkpoints");
   CheckpointInfo info{state.step, model_spec_yaml(data.artifact.spec.model), run.config_hash(), {}};
@@ -162,8 +165,8 @@ void save_state(RunLifecycle& run, Finetuning& f, const FinetuneData& data, cons
 }
 
 EpochState restore(RunLifecycle& run, Finetuning& f, const FinetuneData& data) {
-  const auto last = latest_checkpoint(run.folder().file("checkpoints"));
-  if (!last) fail_usage("--resume: " + run.folder().path().string() + " holds no checkpoint to continue from");
+  const auto last = latest_checkpoint(run.file("checkpoints"));
+  if (!last) fail_usage("--resume: " + run.path().string() + " holds no checkpoint to continue from");
   if (read_checkpoint_info(*last).model_spec_yaml != model_spec_yaml(data.artifact.spec.model)) {
     fail_usage("--resume: the model differs from the run's; continue with the same config and pretrain run");
   }
@@ -207,6 +210,34 @@ std::string format(const char* pattern, double value) {
   return text;
 }
 
+// Data-parallel: each process predicts its share of the validation chips; their confusion
+// counts, summed, give the scores of the whole set.
+EpochScore validate_all(ClassifierModel& model, const FinetuneData& data, const FinetuneConfig& c,
+                        DataParallel& parallel) {
+  parallel.agree_buffers(*model);
+  const auto& chips = data.split.validation;
+  const ShardRange part = shard_range(static_cast<std::int64_t>(chips.size()), parallel.rank(), parallel.world());
+  const std::vector<ChipRef> share(chips.begin() + part.begin, chips.begin() + part.end);
+  const Predictions mine = predict_chips(model, data.chips, share, c.train.batch);
+  const auto k = static_cast<int>(data.artifact.classes.size());
+  std::vector<double> confusion(static_cast<std::size_t>(k * k), 0.0);
+  for (std::size_t i = 0; i < mine.truth.size(); ++i) {
+    confusion[static_cast<std::size_t>(mine.truth[i] * k + mine.predicted[i])] += 1;
+  }
+  parallel.sum(confusion, "validation confusion counts");
+  Predictions whole;
+  for (int cell = 0; cell < k * k; ++cell) {
+    for (double n = 0; n < confusion[static_cast<std::size_t>(cell)]; ++n) {
+      whole.truth.push_back(cell / k);
+      whole.predicted.push_back(cell % k);
+    }
+  }
+  std::int64_t correct = 0;
+  for (std::size_t i = 0; i < whole.truth.size(); ++i) correct += whole.truth[i] == whole.predicted[i];
+  const double accuracy = whole.truth.empty() ? 0.0 : static_cast<double>(correct) / static_cast<double>(whole.truth.size());
+  return {macro_f1_of(whole, k), accuracy};
+}
+
 EpochScore validate(ClassifierModel& model, const FinetuneData& data, const FinetuneConfig& c) {
   const Predictions validation = predict_chips(model, data.chips, data.split.validation, c.train.batch);
   std::int64_t correct = 0;
@@ -229,14 +260,27 @@ bool early_stop(EpochState& state, const EpochScore& score, int epoch, RunLifecy
   return true;
 }
 
+// The weighted cross-entropy of the global batch, through this process's part.
+torch::Tensor batch_loss(const torch::Tensor& logits, const Batch& batch, const FinetuneData& data,
+                         DataParallel& parallel) {
+  const auto options = torch::nn::functional::CrossEntropyFuncOptions().weight(data.class_weights);
+  if (parallel.single()) return torch::nn::functional::cross_entropy(logits, batch.labels, options);
+  const double weight = data.class_weights.index_select(0, batch.labels).sum().item<double>();
+  if (weight == 0) return parallel.global_mean(logits.sum() * 0, 0);  // no weighted label here
+  return parallel.global_mean(torch::nn::functional::cross_entropy(logits, batch.labels, options), weight);
+}
+
 RunOutcome train_epochs(Finetuning& f, EpochState& state, const FinetuneData& data, const FinetuneConfig& c,
-                        RunLifecycle& run, int stop_after) {
+                        RunLifecycle& run, int stop_after, DataParallel& parallel) {
   const std::int64_t per_epoch = data.steps_per_epoch;
   const LearningRateSchedule schedule = warmup_cosine(c.train, c.epochs * per_epoch);
-  BatchLoader loader(data.chips, data.split.train, {c.train.batch, c.train.seed, c.train.augment, state.step});
-  TrainStep train_step(*f.model, *f.optimizer.optimizer, c.train.clip_norm);
-  const auto cross_entropy_options = torch::nn::functional::CrossEntropyFuncOptions().weight(data.class_weights);
-  MetricsLog metrics(run.folder().file("metrics.csv"), kEpochColumns);
+  LoaderSettings loading{c.train.batch, c.train.seed, c.train.augment, state.step};
+  loading.rank = parallel.rank();
+  loading.world = parallel.world();
+  BatchLoader loader(data.chips, data.split.train, loading);
+  TrainStep train_step(*f.model, *f.optimizer.optimizer, c.train.clip_norm, parallel.gradient_sync(),
+                       parallel.loss_agreement());
+  MetricsLog metrics(run.file("metrics.csv"), kEpochColumns);
   if (state.epochs_done > 0 || state.step > 0) metrics.resume(state.epochs_done);
   const int last_epoch = stop_after > 0 ? std::min(stop_after, c.epochs) : c.epochs;
   double lr = schedule.at(std::max<std::int64_t>(0, state.step - 1));  // the rate of the last step done
@@ -251,21 +295,21 @@ RunOutcome train_epochs(Finetuning& f, EpochState& state, const FinetuneData& da
       train_mode(f.model, frozen);
       const StepResult result = train_step.run([&] {
         const torch::Tensor logits = f.model->forward(batch.bands);  // (B, bands, H, W) -> (B, classes)
-        return torch::nn::functional::cross_entropy(logits, batch.labels, cross_entropy_options);
+        return batch_loss(logits, batch, data, parallel);
       });
       if (!result.finite) {
         fail_non_finite("finetune", "step " + std::to_string(step + 1) + " (epoch " + std::to_string(epoch + 1) + ")",
-                        run.folder().file("checkpoints"));
+                        run.file("checkpoints"));
       }
       state.loss_sum += result.loss;
       state.step = step + 1;
       if (run.stop_requested()) {
-        save_state(run, f, data, state, metrics);
+        save_state(run, f, data, state, metrics, parallel);
         return run.interrupted_after("step " + std::to_string(state.step) + " (epoch " + std::to_string(epoch + 1) + ")");
       }
     }
 
-    const EpochScore score = validate(f.model, data, c);
+    const EpochScore score = parallel.single() ? validate(f.model, data, c) : validate_all(f.model, data, c, parallel);
     const double mean_loss = state.loss_sum / static_cast<double>(per_epoch);
     metrics.add({std::to_string(epoch + 1), metric_text(mean_loss), metric_text(lr), frozen ? "1" : "0",
                  metric_text(score.macro_f1), metric_text(score.accuracy)});
@@ -274,7 +318,7 @@ RunOutcome train_epochs(Finetuning& f, EpochState& state, const FinetuneData& da
     state.stopped_early = early_stop(state, score, epoch, run, f, data, c);
     state.epochs_done = epoch + 1;
     state.loss_sum = 0;
-    save_state(run, f, data, state, metrics);
+    save_state(run, f, data, state, metrics, parallel);
     if (run.stop_requested()) return run.interrupted_after("epoch " + std::to_string(epoch + 1));
   }
   if (!state.stopped_early && state.epochs_done < c.epochs) {
@@ -304,14 +348,23 @@ FinetuneResult test_best(RunLifecycle& run, const FinetuneData& data, const Epoc
 }  // namespace
 
 FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& options) {
-  RunLifecycle run({"finetune", c.output, options.force, options.resume, options.resolved_config, c.train.seed});
+  DataParallel one_process;
+  DataParallel& parallel = options.parallel ? *options.parallel : one_process;
+  RunLifecycle run({"finetune", c.output, options.force, options.resume, options.resolved_config, c.train.seed,
+                    parallel.single() ? nullptr : &parallel.group()});
   FinetuneResult result;
   run.execute([&] {
     const FinetuneData data = prepare_split(c, run);
     Finetuning model = build_model(c, data);
     EpochState state = options.resume ? restore(run, model, data) : EpochState{};
+    parallel.prepare(*model.model);
+    // The head's dropout draws from torch's generator, seeded alike everywhere: without this
+    // every rank would drop the same units of its slice. Seeded by rank and by the step the
+    // job starts from (a resumed job draws other masks than an uninterrupted one would).
+    if (!parallel.single()) torch::manual_seed(c.train.seed + 7919 * static_cast<std::uint64_t>(parallel.rank() + 1) +
+                                               static_cast<std::uint64_t>(state.step));
     data.chips.forget_reads();
-    const RunOutcome outcome = train_epochs(model, state, data, c, run, options.stop_after);
+    const RunOutcome outcome = train_epochs(model, state, data, c, run, options.stop_after, parallel);
     const std::int64_t labels_read = data.chips.chips_read();
     log::info("finetune: " + std::to_string(labels_read) + " labelled chips read for training and validation");
     if (outcome.status != RunStatus::done) {
@@ -319,7 +372,7 @@ FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& opti
       result.labelled_chips_read = labels_read;
       return outcome;
     }
-    result = test_best(run, data, state, c);
+    if (run.is_writer()) result = test_best(run, data, state, c);  // the test fold is rank 0's alone
     result.labelled_chips_read = labels_read;
     return outcome;
   });

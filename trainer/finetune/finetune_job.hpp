@@ -16,11 +16,14 @@
 
 namespace tinct {
 
+class DataParallel;
+
 struct FinetuneOptions {
   bool force = false;
   bool resume = false;         // continue from the run's last checkpoint
   int stop_after = 0;          // stop (with a checkpoint) once this many epochs are done; 0 = run to the end
   std::string resolved_config;  // the config with every default, saved into the run
+  DataParallel* parallel = nullptr;  // this process's data-parallel job; null: one process
 };
 
 struct FinetuneResult {

@@ -22,7 +22,7 @@ DecoderStepImpl::DecoderStepImpl(std::int64_t in_channels, std::int64_t skip_cha
           torch::nn::Conv2dOptions(in_channels + skip_channels, channels, /*kernel_size=*/3)
               .padding(1)
               .bias(false))),
-      bn(torch::nn::BatchNorm2d(torch::nn::BatchNorm2dOptions(channels))) {
+      bn(batch_norm_2d(channels)) {
   register_module("conv", conv);
   register_module("bn", bn);
 }

@@ -4,12 +4,12 @@
 // Outputs are raw: scaled Lab (L/100, a/128, b/128), or L/100 then ab bin logits.
 #pragma once
 
-#include <torch/nn/modules/batchnorm.h>
 #include <torch/nn/modules/conv.h>
 
 #include <cstdint>
 #include <vector>
 
+#include "models/batch_norm.hpp"
 #include "models/model_spec.hpp"
 
 namespace tinct {
@@ -23,7 +23,7 @@ class DecoderStepImpl : public torch::nn::Module {
 
  private:
   torch::nn::Conv2d conv{nullptr};
-  torch::nn::BatchNorm2d bn{nullptr};
+  SyncableBatchNorm2d bn{nullptr};
 };
 TORCH_MODULE(DecoderStep);
 

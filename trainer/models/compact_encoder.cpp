@@ -12,8 +12,8 @@ torch::nn::Conv2d conv3x3(std::int64_t in, std::int64_t out, std::int64_t stride
                                .bias(false));
 }
 
-torch::nn::BatchNorm2d batch_norm(std::int64_t channels) {
-  return torch::nn::BatchNorm2d(torch::nn::BatchNorm2dOptions(channels).eps(1e-5).momentum(0.1));
+SyncableBatchNorm2d batch_norm(std::int64_t channels) {
+  return batch_norm_2d(channels);
 }
 
 }  // namespace

@@ -6,9 +6,9 @@
 // decoder (skips, lab; 113,442,816 MACs) the whole model makes 177,143,808 MACs.
 #pragma once
 
-#include <torch/nn/modules/batchnorm.h>
 #include <torch/nn/modules/conv.h>
 
+#include "models/batch_norm.hpp"
 #include "models/encoder.hpp"
 
 namespace tinct {
@@ -21,7 +21,7 @@ class CompactStageImpl : public torch::nn::Module {
 
  private:
   torch::nn::Conv2d down{nullptr}, conv{nullptr};
-  torch::nn::BatchNorm2d down_bn{nullptr}, bn{nullptr};
+  SyncableBatchNorm2d down_bn{nullptr}, bn{nullptr};
 };
 TORCH_MODULE(CompactStage);
 
@@ -38,7 +38,7 @@ class CompactEncoderImpl : public EncoderImpl {
  private:
   std::vector<std::int64_t> widths_;  // stem, stage1..stage4 channels
   torch::nn::Conv2d stem{nullptr};
-  torch::nn::BatchNorm2d stem_bn{nullptr};
+  SyncableBatchNorm2d stem_bn{nullptr};
   CompactStage stage1{nullptr}, stage2{nullptr}, stage3{nullptr}, stage4{nullptr};
 };
 TORCH_MODULE(CompactEncoder);

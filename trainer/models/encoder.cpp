@@ -53,7 +53,7 @@ void init_conv_bn(torch::nn::Module& module) {
   module.apply([](torch::nn::Module& child) {
     if (auto* conv = child.as<torch::nn::Conv2d>()) {
       torch::nn::init::kaiming_normal_(conv->weight, /*a=*/0.0, torch::kFanOut, torch::kReLU);
-    } else if (auto* bn = child.as<torch::nn::BatchNorm2d>()) {
+    } else if (auto* bn = child.as<SyncableBatchNorm2d>()) {
       torch::nn::init::ones_(bn->weight);
       torch::nn::init::zeros_(bn->bias);
     }

@@ -7,10 +7,7 @@
 namespace tinct {
 namespace {
 
-torch::nn::BatchNorm2d batch_norm(std::int64_t channels) {
-  return torch::nn::BatchNorm2d(
-      torch::nn::BatchNorm2dOptions(channels).eps(1e-5).momentum(0.1));
-}
+SyncableBatchNorm2d batch_norm(std::int64_t channels) { return batch_norm_2d(channels); }
 
 torch::nn::Conv2d conv3x3(std::int64_t in, std::int64_t out, std::int64_t stride) {
   return torch::nn::Conv2d(torch::nn::Conv2dOptions(in, out, /*kernel_size=*/3)

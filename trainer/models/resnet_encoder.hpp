@@ -3,11 +3,11 @@
 // `bands` inputs, every stage's channels scaled by `width`. No fc: heads live elsewhere.
 #pragma once
 
-#include <torch/nn/modules/batchnorm.h>
 #include <torch/nn/modules/container/sequential.h>
 #include <torch/nn/modules/conv.h>
 #include <torch/nn/modules/pooling.h>
 
+#include "models/batch_norm.hpp"
 #include "models/encoder.hpp"
 
 namespace tinct {
@@ -21,7 +21,7 @@ class BasicBlockImpl : public torch::nn::Module {
 
  private:
   torch::nn::Conv2d conv1{nullptr}, conv2{nullptr};
-  torch::nn::BatchNorm2d bn1{nullptr}, bn2{nullptr};
+  SyncableBatchNorm2d bn1{nullptr}, bn2{nullptr};
   torch::nn::Sequential downsample{nullptr};  // empty unless stride or channels change
 };
 TORCH_MODULE(BasicBlock);
@@ -42,7 +42,7 @@ class ResNetEncoderImpl : public EncoderImpl {
  private:
   std::vector<std::int64_t> widths_;  // layer1..layer4 channels
   torch::nn::Conv2d conv1{nullptr};
-  torch::nn::BatchNorm2d bn1{nullptr};
+  SyncableBatchNorm2d bn1{nullptr};
   torch::nn::MaxPool2d maxpool{nullptr};
   torch::nn::Sequential layer1{nullptr}, layer2{nullptr}, layer3{nullptr}, layer4{nullptr};
 };

@@ -34,6 +34,7 @@ ColourValidation validate_colour(torch::nn::Module& model,
   result.loss = loss_sum / pixels;
   result.delta_e = delta_sum / pixels;
   result.baseline_delta_e = baseline_sum / pixels;
+  result.pixels = pixels;
   return result;
 }
 

@@ -16,6 +16,7 @@ struct ColourValidation {
   double loss = 0;
   double delta_e = 0;           // mean over valid pixels
   double baseline_delta_e = 0;  // predict-the-mean-colour baseline
+  double pixels = 0;            // valid pixels the means are over
 };
 
 // `model` maps (B, C, H, W) inputs to the objective's outputs. Batches of

@@ -74,6 +74,7 @@ PretrainConfig read_pretrain_config(const ConfigNode& root) {
   read_train(root.section("train"), config);
   config.validation = read_validation(root.section("validation"));
   config.checkpoints = read_checkpoints(root.section("checkpoints"));
+  config.distributed = read_distributed_settings(root.section("distributed"));
   return config;
 }
 

@@ -8,6 +8,7 @@
 #include <string>
 #include <vector>
 
+#include "distributed/distributed_settings.hpp"
 #include "models/model_spec.hpp"
 #include "pretrain/colour_loss_settings.hpp"
 #include "training/train_settings.hpp"
@@ -39,6 +40,7 @@ struct PretrainConfig {
   int log_every = 10;        // train.log_every: steps between metrics rows
   ValidationSettings validation;
   CheckpointSettings checkpoints;
+  DistributedSettings distributed;  // distributed: how the processes of a data-parallel job meet
 };
 
 // Reads the whole config; store manifests are opened to learn the band count.

@@ -8,6 +8,7 @@
 
 #include "batches/batch_loader.hpp"
 #include "batches/spatial_holdout.hpp"
+#include "distributed/shard.hpp"
 #include "models/colourisation_model.hpp"
 #include "pretrain/colour_objective.hpp"
 #include "pretrain/colour_preview.hpp"
@@ -16,6 +17,7 @@
 #include "runs/encoder_artifact.hpp"
 #include "runs/metrics_log.hpp"
 #include "training/lr_schedule.hpp"
+#include "training/data_parallel.hpp"
 #include "training/optimizer.hpp"
 #include "training/run_lifecycle.hpp"
 #include "training/train_step.hpp"
@@ -46,6 +48,7 @@ std::vector<ChipRef> first(const std::vector<ChipRef>& chips, std::size_t count)
 struct Training {
   const PretrainConfig& config;
   RunLifecycle& run;
+  DataParallel& parallel;
   ChipCollection chips;
   ChipSplit split;
   ColourisationModel model;
@@ -53,9 +56,10 @@ struct Training {
   std::int64_t total = 0;
   std::int64_t start = 0;
 
-  Training(const PretrainConfig& c, RunLifecycle& r)
+  Training(const PretrainConfig& c, RunLifecycle& r, DataParallel& p)
       : config(c),
         run(r),
+        parallel(p),
         chips(c.stores),
         split(hold_out_blocks(chips, c.validation.fraction, c.train.seed)),
         model(nullptr) {
@@ -67,6 +71,7 @@ struct Training {
 };
 
 void save_state(Training& t, std::int64_t done, const MetricsLog& metrics) {
+  t.parallel.agree_buffers(*t.model);
   if (!t.run.is_writer()) return;
   const auto folder = t.run.folder().file("checkpoints");
   save_checkpoint(checkpoint_path(folder, done), *t.model, *t.optimizer.optimizer,
@@ -101,18 +106,37 @@ std::string format(const char* pattern, double value) {
   return text;
 }
 
+// This process's share of the validation chips, its pixel-weighted means combined with the
+// other processes' into those of the whole set.
+ColourValidation validate_all(Training& t, const ColourObjective& objective, const std::vector<ChipRef>& chips,
+                              const torch::Tensor& mean_colour) {
+  t.parallel.agree_buffers(*t.model);
+  const ShardRange part = shard_range(static_cast<std::int64_t>(chips.size()), t.parallel.rank(), t.parallel.world());
+  const std::vector<ChipRef> mine(chips.begin() + part.begin, chips.begin() + part.end);
+  const auto forward = [&](const torch::Tensor& x) { return t.model->forward(x); };
+  ColourValidation v = validate_colour(*t.model, forward, objective, t.chips, mine, t.config.train.batch, mean_colour);
+  if (t.parallel.single()) return v;
+  std::vector<double> sums{v.loss * v.pixels, v.delta_e * v.pixels, v.baseline_delta_e * v.pixels, v.pixels};
+  t.parallel.sum(sums, "validation sums");
+  if (sums[3] == 0) return {};
+  return {sums[0] / sums[3], sums[1] / sums[3], sums[2] / sums[3], sums[3]};
+}
+
 RunOutcome train(Training& t, const PretrainOptions& options) {
   const PretrainConfig& c = t.config;
   const ColourObjective objective(c.loss, t.chips, t.split.train);
   const torch::Tensor mean_colour = mean_training_colour(t.chips, t.split.train);
   const auto validation_chips = first(t.split.validation, static_cast<std::size_t>(c.validation.chips));
-  MetricsLog metrics(t.run.folder().file("metrics.csv"), kMetricColumns);
+  MetricsLog metrics(t.run.file("metrics.csv"), kMetricColumns);
   if (t.start > 0) metrics.resume(t.start);
-  BatchLoader loader(t.chips, t.split.train, {c.train.batch, c.train.seed, c.train.augment, t.start});
+  LoaderSettings loading{c.train.batch, c.train.seed, c.train.augment, t.start};
+  loading.rank = t.parallel.rank();
+  loading.world = t.parallel.world();
+  BatchLoader loader(t.chips, t.split.train, loading);
   const LearningRateSchedule schedule = warmup_cosine(c.train, t.total);
-  TrainStep train_step(*t.model, *t.optimizer.optimizer, c.train.clip_norm);
+  TrainStep train_step(*t.model, *t.optimizer.optimizer, c.train.clip_norm, t.parallel.gradient_sync(),
+                       t.parallel.loss_agreement());
   const std::int64_t stop = options.stop_after > 0 ? std::min(options.stop_after, t.total) : t.total;
-  const auto forward = [&](const torch::Tensor& x) { return t.model->forward(x); };
   Progress progress("pretrain", t.total, "steps");
   const auto started = std::chrono::steady_clock::now();
   auto since = started;
@@ -124,13 +148,13 @@ RunOutcome train(Training& t, const PretrainOptions& options) {
     t.optimizer.set_learning_rate(lr);
     const StepResult result = train_step.run([&] {
       const torch::Tensor prediction = t.model->forward(batch.bands);  // (B, C, H, W) -> (B, 3 or 1+Q, H, W)
-      return objective.loss(prediction, batch);
+      return t.parallel.global_mean(objective.loss(prediction, batch), batch.valid.sum().item<double>());
     });
-    if (!result.finite) fail_non_finite("pretrain", "step " + std::to_string(step + 1), t.run.folder().file("checkpoints"));
+    if (!result.finite) fail_non_finite("pretrain", "step " + std::to_string(step + 1), t.run.file("checkpoints"));
 
     const std::int64_t done = step + 1;
     const bool interrupted = t.run.stop_requested();
-    chips_since += batch.bands.size(0);
+    chips_since += c.train.batch;  // the global batch, over every process
     const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
     progress.update(done, "loss " + format("%.4f", result.loss) + ", " +
                               format("%.1f", (done - t.start) * c.train.batch / std::max(elapsed, 1e-9)) + " chips/s");
@@ -143,8 +167,7 @@ RunOutcome train(Training& t, const PretrainOptions& options) {
       since = std::chrono::steady_clock::now();
       chips_since = 0;
       if (validate) {
-        const ColourValidation v = validate_colour(*t.model, forward, objective, t.chips, validation_chips,
-                                                   c.train.batch, mean_colour);
+        const ColourValidation v = validate_all(t, objective, validation_chips, mean_colour);
         row[5] = metric_text(v.loss);
         row[6] = metric_text(v.delta_e);
         row[7] = metric_text(v.baseline_delta_e);
@@ -165,8 +188,8 @@ RunOutcome train(Training& t, const PretrainOptions& options) {
 }
 
 std::int64_t restore(Training& t) {
-  const auto last = latest_checkpoint(t.run.folder().file("checkpoints"));
-  if (!last) fail_usage("--resume: " + t.run.folder().path().string() + " holds no checkpoint to continue from");
+  const auto last = latest_checkpoint(t.run.file("checkpoints"));
+  if (!last) fail_usage("--resume: " + t.run.path().string() + " holds no checkpoint to continue from");
   if (read_checkpoint_info(*last).model_spec_yaml != model_spec_yaml(t.config.model)) {
     fail_usage("--resume: the model in the config differs from the run's; continue with the same config");
   }
@@ -185,11 +208,14 @@ void log_split(const Training& t) {
 }  // namespace
 
 void run_pretrain(const PretrainConfig& config, const PretrainOptions& options) {
+  DataParallel one_process;
+  DataParallel& parallel = options.parallel ? *options.parallel : one_process;
   RunLifecycle run({"pretrain", config.output, options.force, options.resume, options.resolved_config,
-                    config.train.seed});
+                    config.train.seed, parallel.single() ? nullptr : &parallel.group()});
   run.execute([&] {
-    Training training(config, run);
+    Training training(config, run, parallel);
     if (options.resume) training.start = restore(training);
+    parallel.prepare(*training.model);
     log_split(training);
     const RunOutcome outcome = train(training, options);
     if (outcome.status != RunStatus::interrupted) save_encoder_artifact(training);

@@ -10,11 +10,14 @@
 
 namespace tinct {
 
+class DataParallel;
+
 struct PretrainOptions {
   bool resume = false;
   bool force = false;
   std::int64_t stop_after = 0;  // stop (with a checkpoint) once this many steps are done; 0 = run to the end
   std::string resolved_config;  // the config with every default, saved into the run
+  DataParallel* parallel = nullptr;  // this process's data-parallel job; null: one process
 };
 
 // Fails (runtime) when interrupted by SIGINT or SIGTERM, after writing a checkpoint.

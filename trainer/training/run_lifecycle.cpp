@@ -2,6 +2,7 @@
 
 #include <c10/util/Exception.h>
 
+#include "distributed/process_group.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
 #include "util/sha256.hpp"
@@ -19,24 +20,42 @@ std::string message_of(const std::exception& error) {
 
 }  // namespace
 
-RunLifecycle::RunLifecycle(const RunStart& start)
-    : start_(start), folder_(start.output, {start.force, start.resume}) {
-  const fs::path saved = folder_.file("config.resolved.yaml");
+RunLifecycle::RunLifecycle(const RunStart& start) : start_(start) {
+  const fs::path saved = file("config.resolved.yaml");
   if (start.resume && fs::exists(saved) && sha256_file(saved) != sha256_hex(start.resolved_config)) {
-    fail_usage("--resume: the config differs from the one " + folder_.path().string() +
+    fail_usage("--resume: the config differs from the one " + start.output.string() +
                " started with (config.resolved.yaml); resume with the same config, or start a new run");
   }
-  config_hash_ = folder_.write_config(start.resolved_config);
-  folder_.write_status(RunStatus::running, static_cast<std::int64_t>(start.seed));
+  if (!is_writer()) {
+    config_hash_ = sha256_hex(start.resolved_config);
+    return;
+  }
+  folder_ = std::make_unique<RunFolder>(start.output, RunOpening{start.force, start.resume});
+  config_hash_ = folder_->write_config(start.resolved_config);
+  folder_->write_status(RunStatus::running, static_cast<std::int64_t>(start.seed));
+}
+
+RunFolder& RunLifecycle::folder() {
+  if (!folder_) fail_runtime(start_.command + ": only rank 0 writes into the run folder (a bug, please report it)");
+  return *folder_;
+}
+
+bool RunLifecycle::is_writer() const { return !start_.group || start_.group->is_writer(); }
+
+bool RunLifecycle::stop_requested() const {
+  if (!start_.group) return signals_.requested();
+  return start_.group->any(signals_.requested(), "agreement on a stop request");
 }
 
 RunOutcome RunLifecycle::interrupted_after(const std::string& point) const {
-  return {RunStatus::interrupted, "interrupted by " + signals_.signal_name() + " after " + point +
+  const std::string signal = signals_.signal_name().empty() ? "a signal to another rank" : signals_.signal_name();
+  return {RunStatus::interrupted, "interrupted by " + signal + " after " + point +
                                       "; a checkpoint is written and --resume continues"};
 }
 
 void RunLifecycle::record(RunStatus status, const std::string& reason) {
-  folder_.write_status(status, static_cast<std::int64_t>(start_.seed), reason);
+  if (!folder_) return;
+  folder_->write_status(status, static_cast<std::int64_t>(start_.seed), reason);
 }
 
 void RunLifecycle::execute(const std::function<RunOutcome()>& body) {

@@ -2,18 +2,22 @@
 // opened (locked), the resolved config saved with its hash (on --resume it must equal the
 // one the run started with), run.yaml says running, SIGINT/SIGTERM are caught; at the end
 // run.yaml and log.txt say how it ended (done, stopped, interrupted or failed) and why.
-// The one place that decides which process writes (later: rank 0 of a data-parallel job).
+// The one place that decides which process writes: rank 0 of a data-parallel job; the
+// others open nothing in the folder and only read its checkpoints.
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
 #include <functional>
+#include <memory>
 #include <string>
 
 #include "runs/run_folder.hpp"
 #include "training/stop_signals.hpp"
 
 namespace tinct {
+
+class ProcessGroup;
 
 struct RunStart {
   std::string command;  // "pretrain", "finetune": begins log lines and messages
@@ -22,6 +26,7 @@ struct RunStart {
   bool resume = false;  // continue the run in the folder
   std::string resolved_config;
   std::uint64_t seed = 0;
+  ProcessGroup* group = nullptr;  // a data-parallel job's processes; null: one process
 };
 
 struct RunOutcome {
@@ -34,14 +39,19 @@ class RunLifecycle {
   // Fails (usage) on --resume with a config other than the run's, before writing anything.
   explicit RunLifecycle(const RunStart& start);
 
-  RunFolder& folder() { return folder_; }
+  // The open run folder: the writer's only (is_writer()).
+  RunFolder& folder();
+  // A file in the run folder, for every process (checkpoints to resume from).
+  std::filesystem::path file(const std::string& name) const { return start_.output / name; }
+  const std::filesystem::path& path() const { return start_.output; }
   const std::string& config_hash() const { return config_hash_; }
-  // Whether this process writes checkpoints and artefacts: always, until data-parallel
-  // training makes it rank 0 only.
-  bool is_writer() const { return true; }
+  // Whether this process writes checkpoints and artefacts: rank 0 of a data-parallel job.
+  bool is_writer() const;
 
-  // A stop signal has come: finish the step, write a checkpoint, return interrupted_after().
-  bool stop_requested() const { return signals_.requested(); }
+  // A stop signal has come (to any process of a job, which all agree on it, so call it at
+  // the same points on every process): finish the step, write a checkpoint, return
+  // interrupted_after().
+  bool stop_requested() const;
   // "interrupted by SIGTERM after step 12; --resume continues"
   RunOutcome interrupted_after(const std::string& point) const;
 
@@ -54,7 +64,7 @@ class RunLifecycle {
   void record(RunStatus status, const std::string& reason);
 
   RunStart start_;
-  RunFolder folder_;
+  std::unique_ptr<RunFolder> folder_;  // the writer's
   std::string config_hash_;
   StopSignals signals_;
 };

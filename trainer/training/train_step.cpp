@@ -8,13 +8,18 @@
 namespace tinct {
 
 TrainStep::TrainStep(torch::nn::Module& model, torch::optim::Optimizer& optimizer, double clip_norm,
-                     GradientSync sync)
-    : model_(model), optimizer_(optimizer), clip_norm_(clip_norm), sync_(std::move(sync)) {}
+                     GradientSync sync, LossAgreement agree)
+    : model_(model),
+      optimizer_(optimizer),
+      clip_norm_(clip_norm),
+      sync_(std::move(sync)),
+      agree_(std::move(agree)) {}
 
 StepResult TrainStep::run(const std::function<torch::Tensor()>& forward_and_loss) {
   const torch::Tensor loss = forward_and_loss();
   StepResult result;
   result.loss = loss.item<double>();
+  if (agree_) result.loss = agree_(result.loss);
   result.finite = std::isfinite(result.loss);
   if (!result.finite) return result;
   optimizer_.zero_grad();

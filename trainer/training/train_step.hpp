@@ -18,6 +18,11 @@ namespace tinct {
 // processes here; an empty hook (one process) does nothing.
 using GradientSync = std::function<void(const std::vector<torch::Tensor>& parameters)>;
 
+// Called with this process's loss before backward; returns the job's (data-parallel: the
+// mean over processes, non-finite when any is), so every process takes the same branch.
+// An empty hook (one process) keeps the loss as it is.
+using LossAgreement = std::function<double(double loss)>;
+
 struct StepResult {
   double loss = 0;
   bool finite = true;  // false: nothing was updated; the caller stops the run
@@ -27,7 +32,7 @@ class TrainStep {
  public:
   // clip_norm 0: no clipping. The model and optimizer must outlive the step.
   TrainStep(torch::nn::Module& model, torch::optim::Optimizer& optimizer, double clip_norm,
-            GradientSync sync = {});
+            GradientSync sync = {}, LossAgreement agree = {});
 
   // forward_and_loss runs the model on the batch and returns its scalar loss.
   StepResult run(const std::function<torch::Tensor()>& forward_and_loss);
@@ -37,6 +42,7 @@ class TrainStep {
   torch::optim::Optimizer& optimizer_;
   double clip_norm_;
   GradientSync sync_;
+  LossAgreement agree_;
 };
 
 // Fails (runtime) for a non-finite loss at `where` (e.g. "step 12"), naming the last

@@ -1,0 +1,26 @@
+// How a training command becomes a data-parallel job. `--world N` typed in a shell starts N
+// local ranks of the very same command line on loopback and waits for them; each rank (it
+// has RANK set), or a process started by srun or by hand with RANK/WORLD_SIZE/MASTER_*,
+// joins the job. Ranks other than 0 print only warnings and errors.
+#pragma once
+
+#include <memory>
+
+#include "distributed/distributed_settings.hpp"
+
+namespace tinct {
+
+class DataParallel;
+
+// True when this process was asked for `world` > 1 local ranks and is not itself one: it
+// runs them (this program, this command line) and returns once all have ended well;
+// a failed rank fails it. False: the caller goes on as a process of the job (or alone).
+bool run_as_local_ranks(int world);
+
+// This process's part in the job the environment describes (null for one process). Its
+// compute threads: `requested` (--threads or train.threads; 0 = all cores, or Slurm's
+// SLURM_CPUS_PER_TASK), divided among the ranks that share this machine's loopback.
+// `world_flag` (--world, 0 when not given) must agree with WORLD_SIZE.
+std::shared_ptr<DataParallel> join_data_parallel(const DistributedSettings& settings, int world_flag, int requested);
+
+}  // namespace tinct
