@@ -14,3 +14,4 @@ echo "bench: working in $work"
 build/tinct_assess_bench 5000 256 20000
 /usr/bin/python3 scripts/bench/geotiff_bench.py "$PWD/build/tinct_geotiff_tool" "$work"
 build/tinct_allreduce_bench 2 20
+/usr/bin/python3 scripts/bench/map_bench.py "$PWD/build/tinct" "$work" "${TINCT_MAP_BENCH_SIZE:-4096}"

@@ -152,3 +152,9 @@ add_executable(tinct_geotiff_tool tests/reference/geotiff_tool.cpp)
 target_link_libraries(tinct_geotiff_tool PRIVATE tinct_data)
 tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/geotiff_writer_vs_gdal.py $<TARGET_FILE:tinct_geotiff_tool>)
+
+# tinct map: georeferencing against gdalinfo -json, masks, --points, dense vs exact, AOA against
+# numpy on generated scenes; COG validation on the Landsat 7 subset.
+tinct_script_test(map_synthetic ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/map_synthetic.py)
+tinct_script_test(reference_map_l7_cog ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/map_l7_cog.py)
+set_tests_properties(reference_map_l7_cog PROPERTIES FIXTURES_REQUIRED debian_data)

@@ -8,6 +8,7 @@
 #include "pairing/pair_config.hpp"
 #include "pretrain/pretrain_config.hpp"
 #include "finetune/finetune_config.hpp"
+#include "mapping/map_settings.hpp"
 #include "raster/sensor_profile.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
@@ -30,6 +31,7 @@ const ConfigKind kConfigKinds[] = {
     {"label", [](const ConfigNode& root) { read_label_config(root); }},
     {"pretrain", [](const ConfigNode& root) { read_pretrain_config(root); }},
     {"finetune", [](const ConfigNode& root) { read_finetune_config(root); }},
+    {"map", [](const ConfigNode& root) { read_map_config(root); }},
 };
 
 void run_check(const std::string& file) {

@@ -27,6 +27,8 @@ const tinct::CommandEntry kCommands[] = {
     {"finetune", "Fine-tune a classifier on a label store, from a pretrain run or from scratch",
      tinct::setup_finetune},
     {"assess", "Apply a finetune run to a label store and write its metrics", tinct::setup_assess},
+    {"map", "Map a finetune run over whole scenes: class probabilities, uncertainty and area of applicability",
+     tinct::setup_map},
     {"export", "Write a pretrained encoder as safetensors for other tools", tinct::setup_export},
     {"check", "Validate a config without running it and print it with every default filled in",
      tinct::setup_check},

@@ -1,0 +1,147 @@
+#include "mapping/scene_mapper.hpp"
+
+#include <algorithm>
+#include <chrono>
+
+#include "mapping/map_products.hpp"
+#include "mapping/quicklook.hpp"
+#include "mapping/window_cells.hpp"
+#include "mapping/window_layout.hpp"
+#include "raster/crs.hpp"
+#include "raster/scene.hpp"
+#include "util/log.hpp"
+#include "util/progress.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+constexpr int kStripWindowRows = 32;
+constexpr int kTileWindowColumns = 32;
+
+struct StripOutputs {
+  std::vector<float> logits, features;  // (rows * columns, K), (rows * columns, F)
+};
+
+void run_dense(WindowModel& model, const SceneStrip& strip, const WindowLayout& layout, int rows,
+               StripOutputs& out) {
+  const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
+  std::vector<float> tile, logits, features;
+  for (int c0 = 0; c0 < layout.columns; c0 += kTileWindowColumns) {
+    const int columns = std::min(kTileWindowColumns, layout.columns - c0);
+    const int width = (columns - 1) * layout.stride + layout.size;
+    tile.resize(static_cast<std::size_t>(strip.bands()) * strip.height() * width);
+    strip.copy(c0 * layout.stride, 0, width, strip.height(), tile.data());
+    logits.resize(static_cast<std::size_t>(rows) * columns * k);
+    features.resize(static_cast<std::size_t>(rows) * columns * f);
+    model.dense(tile.data(), strip.height(), width, layout.stride, logits.data(), features.data());
+    for (int r = 0; r < rows; ++r) {
+      for (int c = 0; c < columns; ++c) {
+        const std::size_t from = static_cast<std::size_t>(r) * columns + c;
+        const std::size_t to = static_cast<std::size_t>(r) * layout.columns + c0 + c;
+        std::copy_n(logits.begin() + from * k, k, out.logits.begin() + to * k);
+        std::copy_n(features.begin() + from * f, f, out.features.begin() + to * f);
+      }
+    }
+  }
+}
+
+void run_exact(WindowModel& model, const SceneStrip& strip, const WindowLayout& layout,
+               const std::vector<std::size_t>& windows, int batch, StripOutputs& out) {
+  const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
+  const std::size_t window_values = static_cast<std::size_t>(strip.bands()) * layout.size * layout.size;
+  std::vector<float> inputs, logits, features;
+  for (std::size_t start = 0; start < windows.size(); start += static_cast<std::size_t>(batch)) {
+    const std::size_t count = std::min(windows.size() - start, static_cast<std::size_t>(batch));
+    inputs.resize(count * window_values);
+    for (std::size_t i = 0; i < count; ++i) {
+      const auto w = static_cast<int>(windows[start + i]);
+      const int row = w / layout.columns, col = w % layout.columns;
+      strip.copy(col * layout.stride, row * layout.stride, layout.size, layout.size, inputs.data() + i * window_values);
+    }
+    logits.resize(count * k);
+    features.resize(count * f);
+    model.exact(inputs.data(), static_cast<int>(count), logits.data(), features.data());
+    for (std::size_t i = 0; i < count; ++i) {
+      std::copy_n(logits.begin() + i * k, k, out.logits.begin() + windows[start + i] * k);
+      std::copy_n(features.begin() + i * f, f, out.features.begin() + windows[start + i] * f);
+    }
+  }
+}
+
+std::string crs_units(const std::string& wkt) { return crs_is_geographic(wkt) ? "degree" : "m"; }
+
+}  // namespace
+
+InputEncoding input_encoding(const MapSettings& settings, const BandNormalisation& normalisation) {
+  InputEncoding encoding;
+  encoding.round_to_integers = settings.inputs.uint16_storage;
+  for (std::size_t b = 0; b < normalisation.bands.size(); ++b) {
+    encoding.scale.push_back(settings.sensor_given ? settings.profile.scale : settings.inputs.scale[b]);
+    encoding.offset.push_back(settings.sensor_given ? settings.profile.effective_offset() : settings.inputs.offset[b]);
+    encoding.mean.push_back(static_cast<float>(normalisation.mean[b]));
+    encoding.inverse_std.push_back(static_cast<float>(1.0 / normalisation.std[b]));
+  }
+  return encoding;
+}
+
+SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, const fs::path& folder) {
+  const auto start = std::chrono::steady_clock::now();
+  const MapSettings& s = context.settings;
+  WindowModel& model = context.model;
+  const Scene scene(spec, s.profile, s.inputs.bands, s.resolution, s.align);
+  for (const auto& note : scene.alignment_notes()) log::info("map: scene " + spec.id + ": " + note);
+  const WindowLayout layout = window_layout(scene.grid(), model.chip_size(), s.stride, spec.id);
+  const InputEncoding encoding = input_encoding(s, model.normalisation());
+
+  ProductSpec product{layout, scene.grid().crs_wkt, model.classes(), s.probabilities,
+                      context.evidence.applicability.has_value(), context.metadata};
+  product.metadata["TINCT_SCENE"] = spec.id;
+  MapProducts products(folder, product);
+  Quicklook quicklook(layout.columns, layout.rows, layout.cells[1], crs_units(scene.grid().crs_wkt), model.classes(),
+                      "tinct map: " + spec.id + " (" + s.run.filename().string() + ", " + to_string(s.mode) + ")");
+
+  const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
+  SceneMapSummary summary;
+  SceneStrip strip;
+  StripOutputs outputs;
+  std::vector<CellValues> row_cells(static_cast<std::size_t>(layout.columns));
+  Progress progress("map " + spec.id, layout.rows, "window rows");
+  for (int first = 0; first < layout.rows; first += kStripWindowRows) {
+    const int rows = std::min(kStripWindowRows, layout.rows - first);
+    strip.read(scene, layout, encoding, first, rows);
+    const std::size_t windows = static_cast<std::size_t>(rows) * layout.columns;
+    outputs.logits.assign(windows * k, 0.0f);
+    outputs.features.assign(windows * f, 0.0f);
+    std::vector<std::size_t> valid;
+    for (std::size_t w = 0; w < windows; ++w) {
+      const int row = static_cast<int>(w / layout.columns), col = static_cast<int>(w % layout.columns);
+      if (strip.valid_fraction(col, row) >= s.min_valid) valid.push_back(w);
+    }
+    if (s.mode == MapMode::dense) run_dense(model, strip, layout, rows, outputs);
+    else run_exact(model, strip, layout, valid, s.batch, outputs);
+    std::vector<CellValues> cells(windows);
+    for (std::size_t w : valid) cells[w].valid = true;
+    fill_cells(outputs.logits.data(), outputs.features.data(), static_cast<int>(k), static_cast<int>(f),
+               context.evidence, context.threads, cells);
+    for (int r = 0; r < rows; ++r) {
+      std::copy_n(cells.begin() + static_cast<std::size_t>(r) * layout.columns, layout.columns, row_cells.begin());
+      products.write_row(row_cells);
+      quicklook.add_row(first + r, row_cells);
+    }
+    summary.valid += static_cast<std::int64_t>(valid.size());
+    for (std::size_t w : valid) summary.outside += cells[w].inside ? 0 : 1;
+    progress.update(first + rows);
+  }
+  progress.finish();
+  products.finish();
+  quicklook.write(folder / "quicklook.png");
+  summary.cells = static_cast<std::int64_t>(layout.columns) * layout.rows;
+  summary.crs_wkt = scene.grid().crs_wkt;
+  summary.megapixels = static_cast<double>(scene.grid().width) * scene.grid().height / 1e6;
+  summary.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  return summary;
+}
+
+}  // namespace tinct

@@ -1,0 +1,16 @@
+// Turns the model's outputs for a set of windows into the values a map shows: calibrated
+// probabilities, class, normalised entropy, and the area-of-applicability index and mask.
+#pragma once
+
+#include <vector>
+
+#include "mapping/cell_values.hpp"
+#include "mapping/run_evidence.hpp"
+
+namespace tinct {
+
+// cells[i].valid says which windows to fill; logits (N, K), features (N, F) row-major.
+void fill_cells(const float* logits, const float* features, int classes, int feature_count,
+                const RunEvidence& evidence, int threads, std::vector<CellValues>& cells);
+
+}  // namespace tinct
