@@ -51,7 +51,7 @@ def read(path, band=1):
     return ds.GetRasterBand(band).ReadAsArray()
 
 
-with tempfile.TemporaryDirectory() as work:
+with tempfile.TemporaryDirectory(dir=os.environ.get("TINCT_KEEP_DIR")) as work:
     write_profile(work, "maptest")
     # Training scene A: 3 x 3 bright squares of 40 px on textured background.
     a = background(320, 320, 1)
@@ -218,7 +218,7 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
                  "points.gpkg is not in the points' CRS (EPSG:32632)")
 
     # AOA formula in numpy on the exported features (assess/area_of_applicability.hpp).
-    names = [n for n in features.dtype.names if n.startswith("f")]
+    names = [n for n in features.dtype.names if n[0] == "f" and n[1:].isdigit()]
     X = np.stack([features[n] for n in names], axis=1).astype(np.float64)
     folds = features["fold"].astype(int)
     sd = X.std(axis=0, ddof=1)

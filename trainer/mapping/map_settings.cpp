@@ -25,7 +25,10 @@ std::vector<fs::path> run_stores(const fs::path& run) {
   std::vector<fs::path> stores;
   const YAML::Node root = YAML::LoadFile(config.string());
   if (root["stores"]) {
-    for (const auto& item : root["stores"]) stores.emplace_back(item.as<std::string>());
+    for (const auto& item : root["stores"]) {
+      const fs::path store = item.as<std::string>();
+      stores.push_back(store.is_relative() ? (run / store).lexically_normal() : store);  // as ConfigNode reads it
+    }
   }
   if (stores.empty()) fail_runtime(config.string() + ": lists no stores; was the run made by tinct finetune?");
   return stores;
