@@ -64,11 +64,11 @@ with open(os.path.join(WORK, "map-label.yaml"), "w") as f:
     f.write(f"config: label\nsensor: sentinel2-l2a\noutput: map-bench.labels\n{common}"
             f"scenes: [{{id: bench, path: {scene}, date: 2026-06-01}}]\n"
             "labels: {source: map-sites.csv, class: cover, x: x, y: y, crs: EPSG:32632, id: id}\n"
-            f"chips: {{size: {CHIP}, min_valid: 0.9, block_size: 5000}}\n")
+            f"chips: {{size: {CHIP}, min_valid: 0.9, block_size: 1000}}\n")
 with open(os.path.join(WORK, "map-finetune.yaml"), "w") as f:
     f.write("config: finetune\nstores: [map-bench.labels]\noutput: map-bench-run\n"
             "init: {from: scratch, model: {encoder: compact, width: 1}}\n"
-            "split: {method: blocks, block_size: 5000, folds: 3, fold: 0}\n"
+            "split: {method: blocks, block_size: 1000, folds: 3, fold: 0}\n"
             "train: {epochs: 1, batch: 16, lr: 0.002, seed: 1}\n")
 for args in (["label", "--force", "map-label.yaml"], ["finetune", "--force", "map-finetune.yaml"]):
     run = subprocess.run([TINCT, *args], capture_output=True, text=True, cwd=WORK)
