@@ -1,5 +1,6 @@
 #include "mapping/map_products.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 
@@ -58,8 +59,10 @@ std::unique_ptr<GeoTiffWriter> uncertainty_writer(const fs::path& folder, const 
   return std::make_unique<GeoTiffWriter>(folder / "uncertainty.tif", spec);
 }
 
-std::unique_ptr<GeoTiffWriter> aoa_writer(const fs::path& folder, const ProductSpec& p) {
+std::unique_ptr<GeoTiffWriter> aoa_writer(const fs::path& folder, ProductSpec p) {
+  p.layout = applicability_layout(p.layout, p.aoa_step);
   GeoTiffSpec spec = base_spec(p, PixelType::float32, "area of applicability (Meyer and Pebesma 2021)");
+  spec.metadata["TINCT_AOA_STEP"] = std::to_string(p.aoa_step);
   spec.bands.push_back({"dissimilarity index", {}});
   spec.bands.push_back({"inside area of applicability", {{"values", "1 inside, 0 outside"}}});
   spec.nodata = std::nan("");
@@ -67,6 +70,17 @@ std::unique_ptr<GeoTiffWriter> aoa_writer(const fs::path& folder, const ProductS
 }
 
 }  // namespace
+
+WindowLayout applicability_layout(const WindowLayout& layout, int step) {
+  WindowLayout coarse = layout;
+  coarse.columns = (layout.columns + step - 1) / step;
+  coarse.rows = (layout.rows + step - 1) / step;
+  coarse.cells[1] *= step;
+  coarse.cells[5] *= step;
+  return coarse;
+}
+
+int applicability_window(int index, int step, int windows) { return std::min(index * step + step / 2, windows - 1); }
 
 MapProducts::MapProducts(const fs::path& folder, const ProductSpec& spec) : spec_(spec) {
   probabilities_ = probabilities_writer(folder, spec);
@@ -102,6 +116,10 @@ void MapProducts::write_row(const std::vector<CellValues>& cells) {
     if (cells[i].valid) floats_[i] = cells[i].uncertainty;
   }
   uncertainty_->write_rows(floats_.data(), 1);
+}
+
+void MapProducts::write_applicability_row(const std::vector<CellValues>& cells) {
+  const std::size_t n = cells.size();
   if (aoa_) {
     floats_.assign(2 * n, kNaN);
     for (std::size_t i = 0; i < n; ++i) {

@@ -24,14 +24,23 @@ struct ProductSpec {
   std::vector<std::string> classes;
   ProbabilityType probabilities = ProbabilityType::uint8;
   bool aoa = true;
+  int aoa_step = 1;  // aoa.tif's cells hold aoa_step x aoa_step cells of the others
   std::map<std::string, std::string> metadata;  // caution and provenance
 };
+
+// aoa.tif's grid: ceil(columns / step) x ceil(rows / step) cells, same origin, pixels step
+// times larger; its cell (i, j) takes the window at the middle of the cells it covers.
+WindowLayout applicability_layout(const WindowLayout& layout, int step);
+// The window (row or column) whose features give aoa.tif's cell `index`.
+int applicability_window(int index, int step, int windows);
 
 class MapProducts {
  public:
   MapProducts(const std::filesystem::path& folder, const ProductSpec& spec);
   // One row of cells, layout.columns of them.
   void write_row(const std::vector<CellValues>& cells);
+  // One row of aoa.tif's cells.
+  void write_applicability_row(const std::vector<CellValues>& cells);
   void finish();
 
  private:

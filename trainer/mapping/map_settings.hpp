@@ -4,7 +4,7 @@
 // encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
 // sensor none (scenes are read with a profile made from the run's bands, and stored
 // values become reflectance with the scale and offset of the run's label store),
-// grid resolution the run's store pixel size.
+// grid resolution the run's store pixel size, aoa_step 4 (dense mode only).
 #pragma once
 
 #include <filesystem>
@@ -40,6 +40,12 @@ struct MapSettings {
   ProbabilityType probabilities = ProbabilityType::uint8;
   double min_valid = 0.5;
   bool aoa = true;
+  // Windows between the area of applicability's cells, across and down. Its features must be
+  // those of exact windows (the training chips' are: dense features carry context from beyond
+  // the window and lie elsewhere in feature space), so dense maps compute it on exact windows
+  // every aoa_step windows, aoa.tif on a grid aoa_step times coarser. Exact maps use 1.
+  int aoa_step = 4;
+  int applicability_step() const { return mode == MapMode::dense ? aoa_step : 1; }
   int batch = 64;
   SensorProfile profile;      // reads the scenes
   bool sensor_given = false;  // profile from the config: its scale and offset apply

@@ -116,7 +116,7 @@ class PointMapper {
       std::vector<CellValues> cells(1);
       cells[0].valid = true;
       fill_cells(logits.data(), features.data(), static_cast<int>(logits.size()), c_.model.feature_count(),
-                 c_.evidence, c_.threads, cells);
+                 c_.evidence, c_.threads, true, cells);
       result.cell = cells[0];
       result.scene = scene->spec().id;
       result.valid_fraction = fraction;

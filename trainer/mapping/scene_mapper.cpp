@@ -70,6 +70,55 @@ void run_exact(WindowModel& model, const SceneStrip& strip, const WindowLayout& 
   }
 }
 
+// aoa.tif's rows whose cells lie in this strip, from exact windows (step > 1: the window in
+// the middle of each coarse cell; step 1: the cells themselves); fine cells take their coarse
+// cell's index and mask.
+std::vector<std::vector<CellValues>> applicability_rows(WindowModel& model, const SceneStrip& strip,
+                                                        const WindowLayout& layout, int first, int rows, int step,
+                                                        const MapContext& context, std::vector<CellValues>& cells) {
+  const auto columns = static_cast<std::size_t>(layout.columns);
+  std::vector<std::vector<CellValues>> coarse;
+  const int coarse_columns = (layout.columns + step - 1) / step;
+  std::vector<std::size_t> chosen;  // strip window of each coarse cell
+  for (int i = first / step; i * step < first + rows; ++i) {
+    const int row = applicability_window(i, step, layout.rows) - first;
+    for (int j = 0; j < coarse_columns; ++j) {
+      chosen.push_back(static_cast<std::size_t>(row) * columns + applicability_window(j, step, layout.columns));
+    }
+  }
+  std::vector<CellValues> picked;
+  for (std::size_t w : chosen) picked.push_back(cells[w]);
+  if (step > 1) {
+    std::vector<std::size_t> valid;
+    for (std::size_t w : chosen) {
+      if (cells[w].valid) valid.push_back(w);
+    }
+    const std::size_t f = static_cast<std::size_t>(model.feature_count());
+    StripOutputs exact;
+    exact.logits.assign(cells.size() * model.classes().size(), 0.0f);
+    exact.features.assign(cells.size() * f, 0.0f);
+    run_exact(model, strip, layout, valid, context.settings.batch, exact);
+    std::vector<float> features(chosen.size() * f);
+    for (std::size_t c = 0; c < chosen.size(); ++c) {
+      std::copy_n(exact.features.begin() + chosen[c] * f, f, features.begin() + c * f);
+    }
+    fill_applicability(features.data(), static_cast<int>(f), context.evidence, context.threads, picked);
+    for (int r = 0; r < rows; ++r) {
+      for (std::size_t c = 0; c < columns; ++c) {
+        const CellValues& from = picked[static_cast<std::size_t>((first + r) / step - first / step) * coarse_columns +
+                                        c / step];
+        CellValues& cell = cells[static_cast<std::size_t>(r) * columns + c];
+        cell.aoa_index = from.aoa_index;
+        cell.inside = from.valid ? from.inside : true;
+      }
+    }
+  }
+  for (std::size_t start = 0; start < picked.size(); start += static_cast<std::size_t>(coarse_columns)) {
+    coarse.emplace_back(picked.begin() + start, picked.begin() + start + coarse_columns);
+  }
+  return coarse;
+}
+
 std::string crs_units(const std::string& wkt) { return crs_is_geographic(wkt) ? "degree" : "m"; }
 
 }  // namespace
@@ -96,8 +145,10 @@ SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, cons
   const InputEncoding encoding = input_encoding(s, model.normalisation());
 
   ProductSpec product{layout, scene.grid().crs_wkt, model.classes(), s.probabilities,
-                      context.evidence.applicability.has_value(), context.metadata};
+                      context.evidence.applicability.has_value(), 1, context.metadata};
   product.metadata["TINCT_SCENE"] = spec.id;
+  const int step = s.applicability_step();
+  product.aoa_step = step;
   MapProducts products(folder, product);
   Quicklook quicklook(layout.columns, layout.rows, layout.cells[1], crs_units(scene.grid().crs_wkt), model.classes(),
                       "tinct map: " + spec.id + " (" + s.run.filename().string() + ", " + to_string(s.mode) + ")");
@@ -124,7 +175,12 @@ SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, cons
     std::vector<CellValues> cells(windows);
     for (std::size_t w : valid) cells[w].valid = true;
     fill_cells(outputs.logits.data(), outputs.features.data(), static_cast<int>(k), static_cast<int>(f),
-               context.evidence, context.threads, cells);
+               context.evidence, context.threads, step == 1, cells);
+    if (context.evidence.applicability) {
+      for (const auto& coarse_row : applicability_rows(model, strip, layout, first, rows, step, context, cells)) {
+        products.write_applicability_row(coarse_row);
+      }
+    }
     for (int r = 0; r < rows; ++r) {
       std::copy_n(cells.begin() + static_cast<std::size_t>(r) * layout.columns, layout.columns, row_cells.begin());
       products.write_row(row_cells);

@@ -10,7 +10,12 @@
 namespace tinct {
 
 // cells[i].valid says which windows to fill; logits (N, K), features (N, F) row-major.
+// The applicability index only from exact windows' features (with_applicability).
 void fill_cells(const float* logits, const float* features, int classes, int feature_count,
-                const RunEvidence& evidence, int threads, std::vector<CellValues>& cells);
+                const RunEvidence& evidence, int threads, bool with_applicability, std::vector<CellValues>& cells);
+
+// The applicability index and mask of the valid cells from their exact windows' features (N, F).
+void fill_applicability(const float* features, int feature_count, const RunEvidence& evidence, int threads,
+                        std::vector<CellValues>& cells);
 
 }  // namespace tinct
