@@ -17,7 +17,8 @@ namespace fs = std::filesystem;
 namespace tinct {
 namespace {
 
-constexpr int kStripWindowRows = 32;
+constexpr int kStripWindowRows = 32;       // at most; a multiple of every aoa_step
+constexpr double kStripBytes = 64.0 * 1024 * 1024;  // scene values held at once
 constexpr int kTileWindowColumns = 32;
 
 struct StripOutputs {
@@ -119,6 +120,13 @@ std::vector<std::vector<CellValues>> applicability_rows(WindowModel& model, cons
   return coarse;
 }
 
+// Window rows per strip: as many as keep the strip within kStripBytes, a multiple of `step`.
+int strip_window_rows(const WindowLayout& layout, int bands, int step) {
+  const double pixel_rows = kStripBytes / (4.0 * bands * layout.pixel_columns());
+  const int fit = static_cast<int>((pixel_rows - layout.size) / layout.stride) + 1;
+  return std::max(step, std::min(kStripWindowRows, fit) / step * step);
+}
+
 std::string crs_units(const std::string& wkt) { return crs_is_geographic(wkt) ? "degree" : "m"; }
 
 }  // namespace
@@ -159,8 +167,9 @@ SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, cons
   StripOutputs outputs;
   std::vector<CellValues> row_cells(static_cast<std::size_t>(layout.columns));
   Progress progress("map " + spec.id, layout.rows, "window rows");
-  for (int first = 0; first < layout.rows; first += kStripWindowRows) {
-    const int rows = std::min(kStripWindowRows, layout.rows - first);
+  const int strip_rows = strip_window_rows(layout, static_cast<int>(s.inputs.bands.size()), step);
+  for (int first = 0; first < layout.rows; first += strip_rows) {
+    const int rows = std::min(strip_rows, layout.rows - first);
     strip.read(scene, layout, encoding, first, rows);
     const std::size_t windows = static_cast<std::size_t>(rows) * layout.columns;
     outputs.logits.assign(windows * k, 0.0f);
