@@ -116,6 +116,12 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
         f.write(f"config: map\nrun: runs/ft\noutput: maps/exact\nstride: {STRIDE}\nmode: exact\n"
                 f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
     tinct(["check", "map.yaml"], work)
+    with open(os.path.join(work, "map-missing.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/missing\nsensor: {profile}\n"
+                "scenes: [{id: b, date: 2026-06-14, files: {blue: b.tif}}]\n")
+    refused = subprocess.run([TINCT, "map", "map-missing.yaml"], capture_output=True, text=True, cwd=work)
+    checks.check(refused.returncode == 2 and "green, red, nir, swir" in refused.stderr,
+                 f"a scene without the run's bands: exit {refused.returncode}, {refused.stderr[-300:]}")
     tinct(["map", "map.yaml"], work)
     tinct(["map", "map.yaml", "--mode", "dense", "--out", "maps/dense"], work)
     exact = os.path.join(work, "maps", "exact")
