@@ -83,7 +83,7 @@ void read_options(const ConfigNode& root, MapSettings& s) {
   s.aoa = root.flag("aoa", true);
   s.aoa_step = static_cast<int>(root.integer("aoa_step", 4, 1, 32));
   if (32 % s.aoa_step != 0) root.fail("aoa_step", "must divide 32: 1, 2, 4, 8, 16 or 32");
-  s.batch = static_cast<int>(root.integer("batch", 64, 1, 4096));
+  s.batch = static_cast<int>(root.integer("batch", 32, 1, 4096));
 }
 
 void check_scene_bands(const ConfigNode& item, const SceneSpec& scene, const RunInputs& inputs) {

@@ -46,7 +46,7 @@ struct MapSettings {
   // every aoa_step windows, aoa.tif on a grid aoa_step times coarser. Exact maps use 1.
   int aoa_step = 4;
   int applicability_step() const { return mode == MapMode::dense ? aoa_step : 1; }
-  int batch = 64;
+  int batch = 32;
   SensorProfile profile;      // reads the scenes
   bool sensor_given = false;  // profile from the config: its scale and offset apply
   std::vector<SceneSpec> scenes;

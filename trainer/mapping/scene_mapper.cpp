@@ -19,7 +19,7 @@ namespace {
 
 constexpr int kStripWindowRows = 32;       // at most; a multiple of every aoa_step
 constexpr double kStripBytes = 64.0 * 1024 * 1024;  // scene values held at once
-constexpr int kTileWindowColumns = 32;
+constexpr int kTileWindowColumns = 24;  // tile activations stay well within the memory goal
 
 struct StripOutputs {
   std::vector<float> logits, features;  // (rows * columns, K), (rows * columns, F)
