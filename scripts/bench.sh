@@ -16,3 +16,4 @@ build/tinct_assess_bench 5000 256 20000
 build/tinct_allreduce_bench 2 20
 /usr/bin/python3 scripts/bench/study_bench.py "$PWD/build/tinct" "$work"
 /usr/bin/python3 scripts/bench/data_parallel_bench.py "$PWD/build/tinct" "$PWD/build/tinct_allreduce_bench" "$work"
+/usr/bin/python3 scripts/bench/map_bench.py "$PWD/build/tinct" "$work" "${TINCT_MAP_BENCH_SIZE:-4096}"

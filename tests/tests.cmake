@@ -166,3 +166,8 @@ tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
 # numpy.floor, the buffer against scipy's cdist, folds with GroupKFold's semantics, the budget
 # per class and the labelled chips read, split.seed, assess on the run's own store, one-class sides.
 tinct_script_test(reference_split_wgs84_vs_numpy ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/split_wgs84_vs_numpy.py)
+# tinct map: georeferencing against gdalinfo -json, masks, --points, dense vs exact, AOA against
+# numpy on generated scenes; COG validation on the Landsat 7 subset.
+tinct_script_test(map_synthetic ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/map_synthetic.py)
+tinct_script_test(reference_map_l7_cog ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/map_l7_cog.py)
+set_tests_properties(reference_map_l7_cog PROPERTIES FIXTURES_REQUIRED debian_data)

@@ -13,6 +13,8 @@ std::vector<fs::path> read_store_list(const ConfigNode& root, StoreKind kind, in
     fs::path path = item.scalar_text();
     if (path.is_relative()) path = root.folder() / path;
     path = path.lexically_normal();
+    YAML::Node resolved = item.resolved();
+    resolved = path.string();  // absolute in config.resolved.yaml, so a run finds its stores from anywhere
     if (!fs::exists(path / "manifest.yaml")) {
       item.fail("", "no chip store at " + path.string() + " (relative paths are read from the config "
                     "file's folder); make it with " + maker);

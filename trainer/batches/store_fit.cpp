@@ -31,6 +31,10 @@ std::vector<ListedStore> listed_stores(const ConfigNode& root, const std::vector
   std::vector<ListedStore> listed;
   for (std::size_t i = 0; i < stores.size(); ++i) {
     const std::string where = i < items.size() ? items[i].where("") : root.where("stores");
+    if (i < items.size()) {
+      YAML::Node resolved = items[i].resolved();
+      resolved = stores[i].string();  // items() recorded the text again: keep read_store_list's absolute path
+    }
     listed.push_back({where, read_manifest(stores[i] / "manifest.yaml")});
   }
   return listed;

@@ -9,6 +9,7 @@
 #include "pretrain/pretrain_config.hpp"
 #include "finetune/finetune_config.hpp"
 #include "study/study_plan.hpp"
+#include "mapping/map_settings.hpp"
 #include "raster/sensor_profile.hpp"
 #include "util/config_node.hpp"
 #include "util/error.hpp"
@@ -32,6 +33,7 @@ const ConfigKind kConfigKinds[] = {
     {"pretrain", [](const ConfigNode& root) { read_pretrain_config(root); }},
     {"finetune", [](const ConfigNode& root) { read_finetune_config(root); }},
     {"study", [](const ConfigNode& root) { plan_study(read_study_config(root)); }},
+    {"map", [](const ConfigNode& root) { read_map_config(root); }},
 };
 
 void run_check(const std::string& file) {

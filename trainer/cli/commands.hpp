@@ -32,5 +32,6 @@ CommandRun setup_export(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_assess(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_study(CLI::App& command, const GlobalOptions& global);
+CommandRun setup_map(CLI::App& command, const GlobalOptions& global);
 
 }  // namespace tinct

@@ -29,6 +29,8 @@ const tinct::CommandEntry kCommands[] = {
     {"assess", "Apply a finetune run to a label store and write its metrics", tinct::setup_assess},
     {"study", "Compare arms (pretrained, scratch, pixel baselines) over label budgets, seeds and folds, with a report",
      tinct::setup_study},
+    {"map", "Map a finetune run over whole scenes: class probabilities, uncertainty and area of applicability",
+     tinct::setup_map},
     {"export", "Write a pretrained encoder as safetensors for other tools", tinct::setup_export},
     {"check", "Validate a config without running it and print it with every default filled in",
      tinct::setup_check},

@@ -1,0 +1,98 @@
+"""Benchmark of `tinct map` (run by scripts/bench.sh).
+
+A generated SIZE x SIZE (default 4096), 12-band uint16 scene; a classifier of the default
+model (compact encoder, width 1, 64 px chips) fine-tuned from scratch for one epoch on 200
+labels of it; the whole scene mapped at stride 16 in exact and dense mode:
+- megapixels of scene per second, each mode, and dense's speed-up (goal: at least 8x);
+- peak resident memory of each (GNU time's %M; goal: under 500 MB whatever the scene size);
+- agreement of the two class maps over cells with data (goal: at least 98 %).
+Usage: map_bench.py TINCT WORKDIR [SIZE]"""
+import os
+import subprocess
+import sys
+import time
+
+import numpy as np
+from osgeo import gdal, osr
+
+TINCT, WORK = sys.argv[1], sys.argv[2]
+SIZE = int(sys.argv[3]) if len(sys.argv) > 3 else 4096
+BANDS, CHIP = 12, 64
+NAMES = ["B01", "B02", "B03", "B04", "B05", "B06", "B07", "B08", "B8A", "B09", "B11", "B12"]
+
+
+def make_scene(path):
+    if os.path.exists(path):
+        return
+    rng = np.random.default_rng(0)
+    field = np.kron(rng.random((SIZE // 128, SIZE // 128)) > 0.5, np.ones((128, 128)))
+    ds = gdal.GetDriverByName("GTiff").Create(path, SIZE, SIZE, BANDS, gdal.GDT_UInt16,
+                                              ["TILED=YES", "COMPRESS=DEFLATE", "BLOCKXSIZE=256", "BLOCKYSIZE=256"])
+    ds.SetGeoTransform((400000.0, 10.0, 0.0, 5000000.0, 0.0, -10.0))
+    srs = osr.SpatialReference()
+    srs.ImportFromEPSG(32632)
+    ds.SetProjection(srs.ExportToWkt())
+    for b in range(BANDS):
+        band = ds.GetRasterBand(b + 1)
+        band.SetDescription(NAMES[b])
+        band.WriteArray((1000 + 2500 * field * (0.3 + b / 12) + rng.integers(1, 300, (SIZE, SIZE))).astype(np.uint16))
+    ds = None
+    return field
+
+
+def timed(args):
+    start = time.time()
+    run = subprocess.run(["/usr/bin/time", "-f", "%M", TINCT, *args], capture_output=True, text=True, cwd=WORK)
+    if run.returncode:
+        sys.exit(f"tinct {' '.join(args)} failed:\n{run.stderr[-2000:]}")
+    lines = run.stderr.strip().splitlines()
+    scene_rate = [line.split("; ")[-1].split()[0] for line in lines if line.endswith("Mpx/s")]
+    return time.time() - start, int(lines[-1]) / 1024, float(scene_rate[0]) if scene_rate else float("nan")
+
+
+os.makedirs(WORK, exist_ok=True)
+scene = os.path.join(WORK, f"map-scene-{SIZE}.tif")
+make_scene(scene)
+ds = gdal.Open(scene)
+field = ds.GetRasterBand(1).ReadAsArray() > 1000 + 2500 * 0.3 * 0.5
+rng = np.random.default_rng(1)
+with open(os.path.join(WORK, "map-sites.csv"), "w") as f:
+    f.write("id,x,y,cover\n")
+    for i in range(200):
+        r, c = rng.integers(CHIP, SIZE - CHIP, size=2)
+        f.write(f"p{i},{400000 + (c + 0.5) * 10},{5000000 - (r + 0.5) * 10},{'high' if field[r, c] else 'low'}\n")
+common = f"inputs: [{', '.join(NAMES)}]\n"
+with open(os.path.join(WORK, "map-label.yaml"), "w") as f:
+    f.write(f"config: label\nsensor: sentinel2-l2a\noutput: map-bench.labels\n{common}"
+            f"scenes: [{{id: bench, path: {scene}, date: 2026-06-01}}]\n"
+            "labels: {source: map-sites.csv, class: cover, x: x, y: y, crs: EPSG:32632, id: id}\n"
+            f"chips: {{size: {CHIP}, min_valid: 0.9, block_size: 1000}}\n")
+with open(os.path.join(WORK, "map-finetune.yaml"), "w") as f:
+    f.write("config: finetune\nstores: [map-bench.labels]\noutput: map-bench-run\n"
+            "init: {from: scratch, model: {encoder: compact, width: 1}}\n"
+            "split: {method: blocks, block_size: 1000, folds: 3, fold: 0}\n"
+            "train: {epochs: 1, batch: 16, lr: 0.002, seed: 1}\n")
+for args in (["label", "--force", "map-label.yaml"], ["finetune", "--force", "map-finetune.yaml"]):
+    run = subprocess.run([TINCT, *args], capture_output=True, text=True, cwd=WORK)
+    if run.returncode:
+        sys.exit(f"tinct {args[0]} failed:\n{run.stderr[-2000:]}")
+
+megapixels = SIZE * SIZE / 1e6
+results = {}
+for mode in ("exact", "dense"):
+    seconds, rss, scene_rate = timed(["map", "map-bench-run", scene, "--out", f"map-{mode}", "--mode", mode, "--stride", "16",
+                          "--force"])
+    results[mode] = (seconds, rss, scene_rate)
+classes = {m: gdal.Open(os.path.join(WORK, f"map-{m}", os.path.basename(scene)[:-4], "classes.tif")).ReadAsArray()
+           for m in results}
+valid = classes["exact"] != 255
+agreement = float(np.mean(classes["exact"][valid] == classes["dense"][valid]))
+print(f"\ntinct map, {SIZE} x {SIZE} x {BANDS} scene, 64 px windows at stride 16, compact encoder (width 1)")
+print("(whole command: model, calibration and training features included; scene: the scene's own loop)")
+print(f"{'mode':<8}{'seconds':>10}{'Mpx/s':>10}{'scene Mpx/s':>13}{'peak RSS MB':>14}")
+for mode, (seconds, rss, scene_rate) in results.items():
+    print(f"{mode:<8}{seconds:>10.1f}{megapixels / seconds:>10.3f}{scene_rate:>13.3f}{rss:>14.0f}")
+print(f"dense speed-up {results['exact'][0] / results['dense'][0]:.1f}x whole command, "
+      f"{results['dense'][2] / results['exact'][2]:.1f}x scene loop (goal >= 8x); "
+      f"class agreement {100 * agreement:.2f} % of {int(valid.sum())} cells (goal >= 98 %); "
+      f"memory goal < 500 MB")

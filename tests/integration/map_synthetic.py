@@ -1,0 +1,285 @@
+"""tinct map end to end on generated scenes: a classifier trained on bright squares
+(class bright) and textured background (class dark) maps a new scene holding one bright
+square, a patch of a cover never seen in training and a masked patch. Checked against
+GDAL's own gdalinfo -json (CRS, geotransform, size), numpy on GDAL's pixels (probabilities
+sum to 1, nodata exactly where the mask leaves too few valid pixels, the square's cells),
+the run's own --points predictions of the same windows, and a direct numpy computation of
+the area-of-applicability formula (Meyer and Pebesma 2021, as documented in
+assess/area_of_applicability.hpp) on the exported training features."""
+import json
+import os
+import subprocess
+import sys
+import tempfile
+
+import numpy as np
+from osgeo import gdal
+
+sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
+from synthetic import Checks, texture, write, write_profile  # noqa: E402
+
+TINCT = os.environ["TINCT"]
+checks = Checks()
+PIXEL, SIZE, STRIDE = 10.0, 32, 16
+BRIGHT = [4200, 4500, 4800, 5200, 5000]
+ODD = [9000, 300, 9000, 300, 9000]  # a spectral shape absent from training
+
+
+def background(height, width, seed):
+    return [(600 + 900 * texture(height, width, seed + b)).astype(np.uint16) for b in range(5)]
+
+
+def paint(bands, rows, cols, values):
+    for band, value in zip(bands, values):
+        band[rows, cols] = value
+
+
+def tinct(args, cwd):
+    run = subprocess.run([TINCT, "--threads", "1", *args], capture_output=True, text=True, cwd=cwd)
+    checks.check(run.returncode == 0, f"tinct {' '.join(args)}: exit {run.returncode}\n{run.stderr[-2000:]}")
+    if run.returncode:
+        checks.finish()
+    return run
+
+
+def gdalinfo(path):
+    return json.loads(subprocess.run(["gdalinfo", "-json", path], capture_output=True, text=True, check=True).stdout)
+
+
+def read(path, band=1):
+    ds = gdal.Open(path)
+    return ds.GetRasterBand(band).ReadAsArray()
+
+
+with tempfile.TemporaryDirectory(dir=os.environ.get("TINCT_KEEP_DIR")) as work:
+    write_profile(work, "maptest")
+    # Training scene A: 3 x 3 bright squares of 40 px on textured background.
+    a = background(320, 320, 1)
+    squares = [(40 + 100 * i, 40 + 100 * j) for i in range(3) for j in range(3)]
+    for r, c in squares:
+        paint(a, slice(r, r + 40), slice(c, c + 40), BRIGHT)
+    origin_a = (500000.0, 5300000.0)
+    scene_a = write(os.path.join(work, "a.tif"), a, origin=origin_a, pixel=PIXEL)
+    # Map scene B: one bright square, an unseen cover, a masked patch.
+    b = background(256, 256, 11)
+    paint(b, slice(96, 160), slice(48, 112), BRIGHT)
+    paint(b, slice(16, 80), slice(160, 240), ODD)
+    origin_b = (504000.0, 5300000.0)
+    scene_b = write(os.path.join(work, "b.tif"), b, origin=origin_b, pixel=PIXEL)
+    mask = np.zeros((256, 256), np.uint8)
+    mask[176:240, 150:240] = 9
+    write(os.path.join(work, "b-mask.tif"), [mask], origin=origin_b, pixel=PIXEL, dtype="uint8")
+
+    rng = np.random.default_rng(3)
+    with open(os.path.join(work, "sites.csv"), "w") as f:
+        f.write("id,x,y,cover\n")
+        n = 0
+        for r, c in squares:
+            for dr, dc in [(0, 0), (-3, 2), (2, -3), (3, 3)]:
+                x, y = origin_a[0] + (c + 20 + dc + 0.5) * PIXEL, origin_a[1] - (r + 20 + dr + 0.5) * PIXEL
+                f.write(f"s{n},{x},{y},bright\n")
+                n += 1
+        dark = 0
+        while dark < 40:
+            r, c = rng.integers(16, 304, size=2)
+            if any(r + 16 > sr and r - 16 < sr + 40 and c + 16 > sc and c - 16 < sc + 40 for sr, sc in squares):
+                continue
+            x, y = origin_a[0] + (c + 0.5) * PIXEL, origin_a[1] - (r + 0.5) * PIXEL
+            f.write(f"d{dark},{x},{y},dark\n")
+            dark += 1
+    profile = os.path.join(work, "maptest.yaml")
+    with open(os.path.join(work, "label.yaml"), "w") as f:
+        f.write(f"""config: label
+sensor: {profile}
+output: a.labels
+inputs: [blue, green, red, nir, swir]
+scenes: [{{id: a, path: a.tif, date: 2026-06-01}}]
+labels: {{source: sites.csv, class: cover, x: x, y: y, crs: EPSG:32632, id: id, classes: [dark, bright]}}
+chips: {{size: {SIZE}, min_valid: 0.9, block_size: 800}}
+""")
+    with open(os.path.join(work, "finetune.yaml"), "w") as f:
+        f.write("""config: finetune
+stores: [a.labels]
+output: runs/ft
+init: {from: scratch, model: {encoder: compact, width: 0.5}}
+split: {method: blocks, block_size: 800, folds: 3, fold: 0}
+train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
+""")
+    tinct(["label", "label.yaml"], work)
+    tinct(["finetune", "finetune.yaml"], work)
+
+    scenes = f"""scenes:
+  - {{id: b, path: b.tif, date: 2026-06-14, mask: {{path: b-mask.tif, drop: [9]}}}}
+  - {{id: a, path: a.tif, date: 2026-06-01}}
+"""
+    with open(os.path.join(work, "map.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/exact\nstride: {STRIDE}\nmode: exact\n"
+                f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
+    tinct(["check", "map.yaml"], work)
+    with open(os.path.join(work, "map-missing.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/missing\nsensor: {profile}\n"
+                "scenes: [{id: b, date: 2026-06-14, files: {blue: b.tif}}]\n")
+    refused = subprocess.run([TINCT, "map", "map-missing.yaml"], capture_output=True, text=True, cwd=work)
+    checks.check(refused.returncode == 2 and "green, red, nir, swir" in refused.stderr,
+                 f"a scene without the run's bands: exit {refused.returncode}, {refused.stderr[-300:]}")
+    tinct(["map", "map.yaml"], work)
+    tinct(["map", "map.yaml", "--mode", "dense", "--out", "maps/dense"], work)
+    exact = os.path.join(work, "maps", "exact")
+
+    # Georeferencing against gdalinfo -json: CRS identical to the scene's, geotransform as defined.
+    scene_info = gdalinfo(scene_b)
+    offset = SIZE // 2 - STRIDE // 2
+    expected_gt = [origin_b[0] + offset * PIXEL, PIXEL * STRIDE, 0.0, origin_b[1] - offset * PIXEL, 0.0,
+                   -PIXEL * STRIDE]
+    cells = (256 - SIZE) // STRIDE + 1
+    for product in ("probabilities", "classes", "uncertainty", "aoa"):
+        info = gdalinfo(os.path.join(exact, "b", product + ".tif"))
+        checks.check(info["coordinateSystem"]["wkt"] == scene_info["coordinateSystem"]["wkt"],
+                     f"{product}: CRS differs from the scene's")
+        checks.check(np.allclose(info["geoTransform"], expected_gt, rtol=0, atol=1e-6),
+                     f"{product}: geotransform {info['geoTransform']} != {expected_gt}")
+        checks.check(info["size"] == [cells, cells], f"{product}: size {info['size']} != {[cells, cells]}")
+        checks.check(info["metadata"][""].get("LAYOUT") == "COG" or
+                     info["metadata"].get("IMAGE_STRUCTURE", {}).get("LAYOUT") == "COG",
+                     f"{product}: gdalinfo does not report LAYOUT=COG")
+        checks.check("field confirmation" in info["metadata"][""].get("TINCT_CAUTION", ""),
+                     f"{product}: no caution in the metadata")
+    prob_info = gdalinfo(os.path.join(exact, "b", "probabilities.tif"))
+    checks.check([band.get("description") for band in prob_info["bands"]] == ["dark", "bright"],
+                 "probability bands are not described by class name")
+    classes_info = gdalinfo(os.path.join(exact, "b", "classes.tif"))
+    checks.check("colorTable" in classes_info["bands"][0], "classes.tif has no colour table")
+
+    # Nodata exactly where the mask leaves a window under min_valid (numpy on the mask).
+    valid_pixels = (mask != 9).astype(float)
+    fraction = np.array([[valid_pixels[r * STRIDE:r * STRIDE + SIZE, c * STRIDE:c * STRIDE + SIZE].mean()
+                          for c in range(cells)] for r in range(cells)])
+    expected_nodata = fraction < 0.5
+    classes = read(os.path.join(exact, "b", "classes.tif"))
+    checks.check(((classes == 255) == expected_nodata).all(),
+                 f"nodata cells {(classes == 255).sum()} differ from the {expected_nodata.sum()} the mask implies")
+    probabilities = np.stack([read(os.path.join(exact, "b", "probabilities.tif"), k) for k in (1, 2)])
+    checks.check(np.isnan(probabilities[:, expected_nodata]).all(), "masked cells carry probabilities")
+    sums = probabilities[:, ~expected_nodata].sum(axis=0)
+    checks.check(np.abs(sums - 1).max() < 1e-5, f"probabilities sum to 1 within {np.abs(sums - 1).max():.2e}")
+
+    # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
+    # windows touching neither it nor the unseen patch nor the mask are dark.
+    def window_overlaps(r, c, rows, cols):
+        return r * STRIDE < rows[1] and r * STRIDE + SIZE > rows[0] and c * STRIDE < cols[1] and c * STRIDE + SIZE > cols[0]
+
+    inside = [(r, c) for r in range(cells) for c in range(cells)
+              if r * STRIDE >= 96 and r * STRIDE + SIZE <= 160 and c * STRIDE >= 48 and c * STRIDE + SIZE <= 112]
+    away = [(r, c) for r in range(cells) for c in range(cells)
+            if not window_overlaps(r, c, (96, 160), (48, 112)) and not window_overlaps(r, c, (16, 80), (160, 240))
+            and not window_overlaps(r, c, (176, 240), (150, 240))]
+    checks.check(len(inside) >= 4 and all(classes[r, c] == 1 for r, c in inside),
+                 f"cells inside the square: {[int(classes[r, c]) for r, c in inside]} (1 = bright)")
+    dark_share = np.mean([classes[r, c] == 0 for r, c in away])
+    checks.check(dark_share >= 0.95, f"only {dark_share:.3f} of the cells away from the square are dark")
+    print(f"square cells bright: {len(inside)}; background cells dark: {dark_share:.3f}")
+
+    # Dense against exact: agreement of the class maps over cells with data.
+    dense_classes = read(os.path.join(work, "maps", "dense", "b", "classes.tif"))
+    with_data = classes != 255
+    agreement = np.mean(dense_classes[with_data] == classes[with_data])
+    print(f"dense vs exact class agreement: {agreement:.4f} of {with_data.sum()} cells")
+    checks.check(agreement >= 0.95, f"dense agrees with exact on {agreement:.3f} of the cells")
+    checks.check(((dense_classes == 255) == (classes == 255)).all(), "dense and exact nodata differ")
+
+    # --points at window centres of B and at the training chips of A: the same windows' values.
+    features = np.genfromtxt(os.path.join(exact, "training_features.csv"), delimiter=",", names=True)
+    picked = [(r, c) for r in range(0, cells, 3) for c in range(0, cells, 2)]
+    with open(os.path.join(work, "points.csv"), "w") as f:
+        f.write("id,x,y\n")
+        for r, c in picked:
+            x = origin_b[0] + (c * STRIDE + SIZE // 2 + 0.5) * PIXEL
+            y = origin_b[1] - (r * STRIDE + SIZE // 2 + 0.5) * PIXEL
+            f.write(f"cell_{r}_{c},{x},{y}\n")
+        for i, (x, y) in enumerate(zip(features["x"], features["y"])):
+            f.write(f"train_{i},{x},{y}\n")
+    tinct(["map", "map.yaml", "--points", "points.csv", "--out", "maps/points"], work)
+    points = {row["id"]: row for row in
+              __import__("csv").DictReader(open(os.path.join(work, "maps", "points", "points.csv")))}
+    aoa_band = read(os.path.join(exact, "b", "aoa.tif"), 1)
+    worst_p, worst_aoa, compared = 0.0, 0.0, 0
+    for r, c in picked:
+        row = points[f"cell_{r}_{c}"]
+        if classes[r, c] == 255:
+            checks.check(row["predicted"] == "", f"point at masked cell {r},{c} got a class")
+            continue
+        compared += 1
+        worst_p = max(worst_p, abs(float(row["p_bright"]) - probabilities[1, r, c]))
+        worst_aoa = max(worst_aoa, abs(float(row["aoa_index"]) - aoa_band[r, c]))
+    print(f"--points vs map on {compared} windows: max |dp| {worst_p:.2e}, max |d aoa| {worst_aoa:.2e}")
+    checks.check(compared > 10 and worst_p < 1e-5 and worst_aoa < 1e-4,
+                 f"--points and the map differ: |dp| {worst_p:.2e}, |d aoa| {worst_aoa:.2e}")
+    train_index = np.array([float(points[f"train_{i}"]["aoa_index"]) for i in range(len(features))])
+    checks.check(np.abs(train_index).max() < 1e-3,
+                 f"AOA index at training chips is not 0: max {np.abs(train_index).max():.2e}")
+    gpkg = gdal.OpenEx(os.path.join(work, "maps", "points", "points.gpkg"))
+    layer = gpkg.GetLayer(0)
+    checks.check(layer.GetFeatureCount() == len(picked) + len(features), "points.gpkg lacks points")
+    checks.check(layer.GetSpatialRef() is not None and layer.GetSpatialRef().GetAuthorityCode(None) == "32632",
+                 "points.gpkg is not in the points' CRS (EPSG:32632)")
+
+    # AOA formula in numpy on the exported features (assess/area_of_applicability.hpp).
+    names = [n for n in features.dtype.names if n[0] == "f" and n[1:].isdigit()]
+    X = np.stack([features[n] for n in names], axis=1).astype(np.float64)
+    folds = features["fold"].astype(int)
+    sd = X.std(axis=0, ddof=1)
+    keep = sd > 0
+    Z = (X[:, keep] - X[:, keep].mean(axis=0)) / sd[keep]
+    D = np.sqrt(((Z[:, None, :] - Z[None, :, :]) ** 2).sum(axis=2))
+    n = len(Z)
+    d_bar = D[~np.eye(n, dtype=bool)].mean()
+    other = folds[:, None] != folds[None, :]
+    training_index = np.where(other, D, np.inf).min(axis=1) / d_bar
+    q1, q3 = np.percentile(training_index, [25, 75])
+    threshold = training_index[training_index <= q3 + 1.5 * (q3 - q1)].max()
+    aoa = json.load(open(os.path.join(exact, "aoa.json")))
+    checks.check(abs(aoa["mean_distance"] - d_bar) < 1e-4 * d_bar, f"mean distance {aoa['mean_distance']} != {d_bar}")
+    checks.check(abs(aoa["threshold"] - threshold) < 1e-4 * max(threshold, 1e-9),
+                 f"threshold {aoa['threshold']} != numpy {threshold}")
+    checks.check(np.allclose(features["training_index"], training_index, rtol=1e-4, atol=1e-6),
+                 "training indices differ from numpy")
+    # The unseen cover lies outside; the index there exceeds the index over the trained covers.
+    odd = [(r, c) for r in range(cells) for c in range(cells)
+           if r * STRIDE >= 16 and r * STRIDE + SIZE <= 80 and c * STRIDE >= 160 and c * STRIDE + SIZE <= 240]
+    mask_band = read(os.path.join(exact, "b", "aoa.tif"), 2)
+    odd_index = np.array([aoa_band[r, c] for r, c in odd])
+    away_index = np.array([aoa_band[r, c] for r, c in away])
+    print(f"AOA index: unseen cover median {np.median(odd_index):.3f}, trained covers median "
+          f"{np.median(away_index):.3f}, threshold {aoa['threshold']:.3f}")
+    checks.check(np.median(odd_index) > 2 * np.median(away_index), "the unseen cover's index is not larger")
+    checks.check(all(mask_band[r, c] == 0 for r, c in odd), "cells of the unseen cover are not marked outside")
+
+    # Dense maps take the AOA from exact windows every 4th window (aoa_step 4): a grid 4 times
+    # coarser, same origin, each cell the exact map's value at its middle window.
+    dense_aoa_path = os.path.join(work, "maps", "dense", "b", "aoa.tif")
+    info = gdalinfo(dense_aoa_path)
+    coarse = -(-cells // 4)
+    checks.check(np.allclose(info["geoTransform"], [expected_gt[0], expected_gt[1] * 4, 0.0, expected_gt[3], 0.0,
+                                                    expected_gt[5] * 4], rtol=0, atol=1e-6) and
+                 info["size"] == [coarse, coarse], f"dense aoa.tif grid {info['geoTransform']} {info['size']}")
+    dense_aoa = read(dense_aoa_path, 1)
+    worst = 0.0
+    for i in range(coarse):
+        for j in range(coarse):
+            wr, wc = min(4 * i + 2, cells - 1), min(4 * j + 2, cells - 1)
+            if classes[wr, wc] != 255:
+                worst = max(worst, abs(dense_aoa[i, j] - aoa_band[wr, wc]))
+    checks.check(worst < 1e-4, f"dense aoa.tif differs from the exact windows' index by {worst:.2e}")
+
+    # Mosaic over the two scenes, quicklook.
+    for product in ("probabilities", "classes", "uncertainty", "aoa"):
+        vrt = os.path.join(exact, f"mosaic-{product}.vrt")
+        checks.check(os.path.exists(vrt) and gdal.Open(vrt) is not None, f"no readable {vrt}")
+    quicklook = os.path.join(exact, "b", "quicklook.png")
+    image = gdal.Open(quicklook)
+    checks.check(image is not None and image.RasterXSize >= 600, "quicklook.png missing or small")
+    os.makedirs(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic"), exist_ok=True)
+    if image is not None:
+        gdal.Translate(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic", "quicklook.png"), image)
+
+checks.finish()

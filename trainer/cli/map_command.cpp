@@ -1,0 +1,65 @@
+// tinct map CONFIG | tinct map RUN RASTER --out DIR: a finetune run over whole scenes.
+#include "cli/commands.hpp"
+#include "mapping/map_job.hpp"
+#include "mapping/map_settings.hpp"
+#include "util/config_node.hpp"
+#include "util/error.hpp"
+
+namespace tinct {
+
+struct MapOptions {
+  std::vector<std::string> inputs;
+  std::string out;
+  std::string points;
+  std::string mode;
+  int stride = 0;
+  bool force = false;
+};
+
+static MapSettings settings_from(const MapOptions& options) {
+  if (options.inputs.size() == 2) {
+    if (options.out.empty()) fail_usage("tinct map RUN RASTER needs --out DIR (the folder to write)");
+    return map_settings_for_raster(options.inputs[0], options.inputs[1], options.out);
+  }
+  const ConfigNode root = ConfigNode::load(options.inputs[0]);
+  root.choice("config", {"map"});
+  MapSettings settings = read_map_config(root);
+  root.finish();
+  if (!options.out.empty()) settings.output = options.out;
+  return settings;
+}
+
+static void run_map_command(const MapOptions& options, const GlobalOptions& global) {
+  MapSettings settings = settings_from(options);
+  if (options.stride > 0) settings.stride = options.stride;
+  if (!options.mode.empty()) settings.mode = options.mode == "dense" ? MapMode::dense : MapMode::exact;
+  if (settings.mode == MapMode::dense && settings.stride % settings.inputs.feature_stride != 0) {
+    fail_usage("dense mode needs a stride that is a multiple of the encoder's feature stride (" +
+               std::to_string(settings.inputs.feature_stride) + " px); the stride is " +
+               std::to_string(settings.stride) + ": use --mode exact or another --stride");
+  }
+  MapJobOptions job;
+  job.replace = options.force;
+  job.threads = global.threads;
+  job.points = options.points;
+  run_map(settings, job);
+}
+
+CommandRun setup_map(CLI::App& command, const GlobalOptions& global) {
+  auto options = std::make_shared<MapOptions>();
+  command.add_option("inputs", options->inputs,
+                     "A map config (YAML, config: map), or a finetune run folder and a raster whose bands are the "
+                     "run's inputs in order")
+      ->required()
+      ->expected(1, 2);
+  command.add_option("--out", options->out, "Folder to write (default: the config's output)");
+  command.add_option("--points", options->points,
+                     "Predict at these points instead (CSV with x,y or lon,lat, or any OGR point layer)");
+  command.add_option("--mode", options->mode, "exact (each window alone) or dense (encoder over tiles)")
+      ->check(CLI::IsMember({"exact", "dense"}));
+  command.add_option("--stride", options->stride, "Pixels between window centres")->check(CLI::PositiveNumber);
+  command.add_flag("--force", options->force, "Replace an existing output folder");
+  return [options, &global] { run_map_command(*options, global); };
+}
+
+}  // namespace tinct

@@ -1,0 +1,106 @@
+#include "mapping/map_job.hpp"
+
+#include <yaml-cpp/yaml.h>
+
+#include "mapping/map_caution.hpp"
+#include "mapping/point_predictions.hpp"
+#include "mapping/run_evidence.hpp"
+#include "mapping/scene_mapper.hpp"
+#include "mapping/window_model.hpp"
+#include "raster/target_grid.hpp"
+#include "raster/vrt_mosaic.hpp"
+#include "runs/metrics_log.hpp"
+#include "util/atomic_file.hpp"
+#include "util/error.hpp"
+#include "util/log.hpp"
+#include "util/version_info.hpp"
+
+namespace fs = std::filesystem;
+
+namespace tinct {
+namespace {
+
+std::string run_config_hash(const fs::path& run) {
+  try {
+    const YAML::Node status = YAML::LoadFile((run / "run.yaml").string());
+    if (status["config_hash"]) return status["config_hash"].as<std::string>();
+  } catch (const YAML::Exception&) {
+  }
+  return "unknown";
+}
+
+std::map<std::string, std::string> provenance(const MapSettings& s, const RunEvidence& evidence) {
+  std::map<std::string, std::string> m;
+  m["TINCT_CAUTION"] = kMapCaution;
+  m["TINCT_RUN"] = s.run.lexically_normal().filename().string();
+  m["TINCT_RUN_CONFIG_HASH"] = run_config_hash(s.run);
+  m["TINCT_MAP_CONFIG_HASH"] = s.config_hash;
+  m["TINCT_VERSION"] = tinct_version();
+  m["TINCT_MODE"] = to_string(s.mode);
+  m["TINCT_STRIDE_PX"] = std::to_string(s.stride);
+  m["TINCT_WINDOW_PX"] = std::to_string(s.inputs.chip_size);
+  m["TINCT_MIN_VALID"] = metric_text(s.min_valid);
+  m["TINCT_CALIBRATION"] = evidence.calibrated ? "temperature " + metric_text(evidence.temperature) +
+                                                     " fitted on the run's validation chips"
+                                               : "none (uncalibrated softmax)";
+  if (evidence.applicability) {
+    m["TINCT_AOA"] = "dissimilarity index over unweighted standardised pooled encoder features; threshold " +
+                     metric_text(evidence.applicability->threshold);
+  }
+  return m;
+}
+
+void build_mosaics(const fs::path& folder, const std::vector<std::string>& scenes, bool aoa,
+                   const std::vector<std::string>& crs) {
+  for (std::size_t i = 1; i < crs.size(); ++i) {
+    if (!same_crs(crs[i], crs[0])) {
+      log::warning("map: the scenes lie in different CRS; no mosaic is built (each scene's files stand alone)");
+      return;
+    }
+  }
+  std::vector<std::string> products{"probabilities", "classes", "uncertainty"};
+  if (aoa) products.push_back("aoa");
+  for (const auto& product : products) {
+    std::vector<fs::path> sources;
+    for (const auto& id : scenes) sources.push_back(folder / id / (product + ".tif"));
+    build_vrt_mosaic(folder / ("mosaic-" + product + ".vrt"), sources);
+  }
+}
+
+}  // namespace
+
+void run_map(const MapSettings& s, const MapJobOptions& options) {
+  WindowModel model(s.run / "model.pt");
+  log::info("map: run " + s.run.string() + ", " + std::to_string(s.inputs.chip_size) + " px windows at stride " +
+            std::to_string(s.stride) + " px, " + to_string(s.mode) + " mode, classes " +
+            std::to_string(model.classes().size()));
+  const RunEvidence evidence =
+      s.aoa ? gather_run_evidence(s.run, model, true, s.batch, options.threads) : RunEvidence{};
+  if (!s.aoa) log::warning("map: aoa: false: no area of applicability and uncalibrated probabilities");
+  MapContext context{s, model, evidence, provenance(s, evidence), options.threads};
+
+  PartialFolder out(s.output, options.replace);
+  write_applicability_files(out.path(), evidence);
+  if (!options.points.empty()) {
+    predict_points(options.points, context, out.path());
+    out.commit();
+    return;
+  }
+  std::vector<std::string> ids, crs;
+  for (const SceneSpec& scene : s.scenes) {
+    const fs::path folder = out.path() / scene.id;
+    fs::create_directories(folder);
+    const SceneMapSummary summary = map_scene(scene, context, folder);
+    log::info("map: " + scene.id + ": " + std::to_string(summary.cells) + " cells, " +
+              std::to_string(summary.valid) + " with data, " + std::to_string(summary.outside) +
+              " of them outside the area of applicability; " + metric_text(summary.megapixels / summary.seconds) +
+              " Mpx/s");
+    ids.push_back(scene.id);
+    crs.push_back(summary.crs_wkt);
+  }
+  if (ids.size() > 1) build_mosaics(out.path(), ids, evidence.applicability.has_value(), crs);
+  out.commit();
+  log::info("map: wrote " + s.output.string() + ". " + kMapCaution);
+}
+
+}  // namespace tinct

@@ -1,0 +1,71 @@
+// The settings of `tinct map`, from a YAML config (config: map) or from the short form
+// `tinct map RUN RASTER --out DIR`. Required: run, output, scenes (as in label configs).
+// Defaults: stride chip size / 4, mode dense where the stride is a multiple of the
+// encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
+// sensor none (scenes are read with a profile made from the run's bands, and stored
+// values become reflectance with the scale and offset of the run's label store),
+// grid resolution the run's store pixel size, aoa_step 4 (dense mode only).
+#pragma once
+
+#include <filesystem>
+#include <string>
+#include <vector>
+
+#include "raster/resampling.hpp"
+#include "raster/scene_spec.hpp"
+#include "raster/sensor_profile.hpp"
+#include "util/config_node.hpp"
+
+namespace tinct {
+
+enum class MapMode { exact, dense };
+enum class ProbabilityType { uint8, float32 };
+
+// What the run says about its inputs: taken from its model.pt and its label stores.
+struct RunInputs {
+  std::vector<std::string> bands;
+  int chip_size = 0;
+  int feature_stride = 16;             // the encoder's deepest stride
+  std::vector<double> scale, offset;   // per band: reflectance = (stored + offset) * scale
+  bool uint16_storage = true;          // the store rounded values to integers
+  double pixel_size = 0;               // of the training store
+  std::vector<std::filesystem::path> stores;  // the run's label stores
+};
+
+struct MapSettings {
+  std::filesystem::path run;
+  std::filesystem::path output;
+  int stride = 0;
+  MapMode mode = MapMode::dense;
+  ProbabilityType probabilities = ProbabilityType::uint8;
+  double min_valid = 0.5;
+  bool aoa = true;
+  // Windows between the area of applicability's cells, across and down. Its features must be
+  // those of exact windows (the training chips' are: dense features carry context from beyond
+  // the window and lie elsewhere in feature space), so dense maps compute it on exact windows
+  // every aoa_step windows, aoa.tif on a grid aoa_step times coarser. Exact maps use 1.
+  int aoa_step = 4;
+  int applicability_step() const { return mode == MapMode::dense ? aoa_step : 1; }
+  int batch = 32;
+  SensorProfile profile;      // reads the scenes
+  bool sensor_given = false;  // profile from the config: its scale and offset apply
+  std::vector<SceneSpec> scenes;
+  double resolution = 0;
+  AlignSettings align;
+  RunInputs inputs;
+  std::string config_hash;
+};
+
+// Reads the run's model description and store manifests (the run's config.resolved.yaml).
+RunInputs read_run_inputs(const std::filesystem::path& run);
+
+// `root` is the config's top level; calls finish() on every section it reads.
+MapSettings read_map_config(const ConfigNode& root);
+
+// The short form: one raster whose bands are the run's inputs in order.
+MapSettings map_settings_for_raster(const std::filesystem::path& run, const std::filesystem::path& raster,
+                                    const std::filesystem::path& output);
+
+std::string to_string(MapMode mode);
+
+}  // namespace tinct
