@@ -11,6 +11,7 @@
 
 #include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
+#include "models/head_spec.hpp"
 #include "models/model_spec.hpp"
 #include "training/train_settings.hpp"
 #include "util/config_node.hpp"
@@ -31,6 +32,7 @@ struct FinetuneConfig {
   FinetuneInit init;
   double dropout = 0.2;
   int hidden = 0;
+  HeadSpec head;  // head: pool, kind, k, l2, colour_channels (models/head_spec.hpp)
   FreezePolicy freeze = FreezePolicy::full;
   int unfreeze_epoch = 5;
   double encoder_lr_scale = 1.0;
