@@ -152,3 +152,7 @@ add_executable(tinct_geotiff_tool tests/reference/geotiff_tool.cpp)
 target_link_libraries(tinct_geotiff_tool PRIVATE tinct_data)
 tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/geotiff_writer_vs_gdal.py $<TARGET_FILE:tinct_geotiff_tool>)
+
+tinct_script_test(reference_heads_l7_vs_sklearn
+  ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/heads_l7_vs_sklearn.py)
+set_tests_properties(reference_heads_l7_vs_sklearn PROPERTIES FIXTURES_REQUIRED debian_data)
