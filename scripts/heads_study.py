@@ -163,6 +163,7 @@ def main():
     p.add_argument("--pretrain-steps", type=int, default=400)
     p.add_argument("--threads", default="1")
     a = p.parse_args()
+    a.tinct, a.tool = os.path.abspath(a.tinct), os.path.abspath(a.tool)
     work = os.path.abspath(a.work)
     os.makedirs(work, exist_ok=True)
     ds, tasks = task_classes(os.path.abspath(a.l7))

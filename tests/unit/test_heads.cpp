@@ -163,8 +163,8 @@ TEST_CASE("every encoder, pool and kind gives features and logits of the right s
 }
 
 TEST_CASE("the knn head votes among the k nearest standardised rows", "[heads]") {
-  // By hand: rows on a line, standardised (mean 3, sd 2) -> query 4.2 is nearest to 5, 3, 1
-  // (classes 1, 1, 0): shares 2/3 and 1/3; with k 1 only class 1.
+  // By hand: rows 0, 1, 3, 5, 6 on a line (standardising one column keeps the order); query
+  // 4.2 is nearest to 5, 3, 6 (classes 1, 1, 2): shares 0, 2/3, 1/3.
   tinct::KnnHead knn(1, 3, 3);
   knn->set_bank(torch::tensor({0.0f, 1.0f, 3.0f, 5.0f, 6.0f}).view({5, 1}) * 1.0f, torch::tensor({0L, 0L, 1L, 1L, 2L}));
   const torch::Tensor shares = torch::softmax(knn->forward(torch::tensor({{4.2f}})), 1);

@@ -135,16 +135,20 @@ std::string number(double value) {
 
 torch::Tensor extract_features(ClassifierModel& model, const ChipCollection& chips, const std::vector<ChipRef>& refs,
                                int batch) {
-  torch::InferenceMode inference;
   model->eval();
-  std::vector<torch::Tensor> parts;
-  for (std::size_t start = 0; start < refs.size(); start += static_cast<std::size_t>(batch)) {
-    const std::vector<ChipRef> part(refs.begin() + start, refs.begin() + std::min(refs.size(), start + batch));
-    const Batch b = assemble_batch(chips, part, std::vector<int>(part.size(), 0));
-    parts.push_back(model->features(b.bands));  // (B, bands, H, W) -> (B, F)
+  torch::Tensor features;
+  {
+    torch::InferenceMode inference;
+    std::vector<torch::Tensor> parts;
+    for (std::size_t start = 0; start < refs.size(); start += static_cast<std::size_t>(batch)) {
+      const std::vector<ChipRef> part(refs.begin() + start, refs.begin() + std::min(refs.size(), start + batch));
+      const Batch b = assemble_batch(chips, part, std::vector<int>(part.size(), 0));
+      parts.push_back(model->features(b.bands));  // (B, bands, H, W) -> (B, F)
+    }
+    features = torch::cat(parts, 0);
   }
   model->train();
-  return torch::cat(parts, 0).clone();  // a normal tensor, usable outside inference mode
+  return features.clone();  // cloned outside inference mode: a normal tensor autograd may save
 }
 
 ProbeFit fit_probe(ClassifierModel& model, const ChipCollection& chips, const std::vector<ChipRef>& train,

@@ -63,7 +63,8 @@ torch::Tensor KnnHeadImpl::forward(const torch::Tensor& x) {
                    2.0, /*compute_mode=donot_use_mm_for_euclid_dist*/ 2)
           .squeeze(0);
   // stable sort: equal distances keep the lower row first
-  const torch::Tensor order = std::get<1>(distance.sort(/*stable=*/true, /*dim=*/1)).narrow(1, 0, k);  // (B, k)
+  const torch::Tensor order =
+      std::get<1>(torch::sort(distance, c10::optional<bool>(true), /*dim=*/1, /*descending=*/false)).narrow(1, 0, k);
   const torch::Tensor neighbour_labels = labels_.index_select(0, order.flatten()).view({-1, k});
   const torch::Tensor votes =
       torch::zeros({x.size(0), classes_}, torch::kFloat64).scatter_add_(1, neighbour_labels,
