@@ -14,10 +14,12 @@ per class), seed and spatial block fold, every arm on the same training and test
   baselines   random forest and logistic regression on the label pixel's bands and 3 x 3 mean
               (tinct_baseline_tool: OpenCV cv::ml, the study's pixel baselines)
 Writes RESULTS/runs.csv (one row per arm and split) and prints macro F1 mean, sd and the
-paired difference to the best baseline with a bootstrap 95% interval.
+paired difference (same task, budget, seed and fold) to the best baseline and to today's
+default head (global) with a bootstrap 95% interval of the mean difference.
 
 usage: heads_study.py TINCT BASELINE_TOOL L7_ETMs.tif WORK [--seeds 1 2] [--budgets 5 15]
-                      [--arms a b ...] [--pretrain-steps 400] [--threads 1]
+                      [--tasks index visible] [--arms a b ...] [--pretrain-steps 400] [--threads 1]
+                      [--summary-only]
 """
 import argparse
 import csv
@@ -162,7 +164,14 @@ def main():
     p.add_argument("--arms", nargs="+", default=list(ARMS))
     p.add_argument("--pretrain-steps", type=int, default=400)
     p.add_argument("--threads", default="1")
+    p.add_argument("--summary-only", action="store_true", help="summarise WORK/runs.csv as it stands")
     a = p.parse_args()
+    if a.summary_only:
+        with open(os.path.join(a.work, "runs.csv")) as f:
+            rows = list(csv.DictReader(f))
+        summarise([(r["task"], int(r["budget"]), int(r["seed"]), int(r["fold"]), r["arm"], float(r["macro_f1"]))
+                   for r in rows], a)
+        return
     a.tinct, a.tool = os.path.abspath(a.tinct), os.path.abspath(a.tool)
     work = os.path.abspath(a.work)
     os.makedirs(work, exist_ok=True)
@@ -212,6 +221,10 @@ def summarise(results, a):
                     d = np.array([values[k] - by_arm[best][k] for k in keys])
                     low, high = bootstrap_interval(d, rng)
                     line += f"  {d.mean():+.3f} [{low:+.3f}, {high:+.3f}] vs {best}"
+                if arm not in BASELINES and arm != "global" and by_arm.get("global"):
+                    d = np.array([values[k] - by_arm["global"][k] for k in keys])
+                    low, high = bootstrap_interval(d, rng)
+                    line += f"  {d.mean():+.3f} [{low:+.3f}, {high:+.3f}] vs global"
                 print(line)
 
 
