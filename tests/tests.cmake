@@ -171,3 +171,6 @@ tinct_script_test(reference_split_wgs84_vs_numpy ${DEBIAN_PYTHON} ${CMAKE_SOURCE
 tinct_script_test(map_synthetic ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/map_synthetic.py)
 tinct_script_test(reference_map_l7_cog ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/map_l7_cog.py)
 set_tests_properties(reference_map_l7_cog PROPERTIES FIXTURES_REQUIRED debian_data)
+tinct_script_test(reference_heads_l7_vs_sklearn
+  ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/heads_l7_vs_sklearn.py)
+set_tests_properties(reference_heads_l7_vs_sklearn PROPERTIES FIXTURES_REQUIRED debian_data)

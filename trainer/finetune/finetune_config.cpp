@@ -118,8 +118,11 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
                            ? store_conflicts(root, config.stores, config.init.model.encoder)
                            : store_conflicts_with_run(root, config.stores, config.init.pretrain_run, init, "run"));
   const ConfigNode head = root.section("head");
-  config.dropout = head.number("dropout", 0.2, 0.0, 0.95);
-  config.hidden = static_cast<int>(head.integer("hidden", 0, 0, 8192));
+  config.head = read_head_spec(head);
+  if (!is_probe(config.head.kind)) {
+    config.dropout = head.number("dropout", 0.2, 0.0, 0.95);
+    config.hidden = static_cast<int>(head.integer("hidden", 0, 0, 8192));
+  }
   head.finish();
   read_freeze(root.section("freeze"), config);
   read_classes(root.section("classes"), config);

@@ -12,6 +12,7 @@
 #include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
 #include "distributed/distributed_settings.hpp"
+#include "models/head_spec.hpp"
 #include "models/model_spec.hpp"
 #include "training/train_settings.hpp"
 #include "util/config_node.hpp"
@@ -32,6 +33,7 @@ struct FinetuneConfig {
   FinetuneInit init;
   double dropout = 0.2;
   int hidden = 0;
+  HeadSpec head;  // head: pool, kind, k, l2, colour_channels (models/head_spec.hpp)
   FreezePolicy freeze = FreezePolicy::full;
   int unfreeze_epoch = 5;
   double encoder_lr_scale = 1.0;

@@ -7,6 +7,7 @@
 #include "batches/batch_loader.hpp"
 #include "inference/split_table.hpp"
 #include "distributed/shard.hpp"
+#include "finetune/probe_fit.hpp"
 #include "runs/checkpoint.hpp"
 #include "runs/classifier_artifact.hpp"
 #include "runs/encoder_artifact.hpp"
@@ -66,6 +67,7 @@ ClassifierArtifact describe_classifier(const FinetuneConfig& c, ChipCollection& 
   artifact.spec.classes = static_cast<int>(artifact.classes.size());
   artifact.spec.dropout = c.dropout;
   artifact.spec.hidden = c.hidden;
+  artifact.spec.head = c.head;
   artifact.chip_size = chips.chip_size();
   if (!c.init.pretrain_run.empty()) {
     const EncoderArtifact encoder = read_encoder_artifact(c.init.pretrain_run / "encoder.pt");
@@ -140,8 +142,10 @@ Finetuning build_model(const FinetuneConfig& c, const FinetuneData& data) {
   Finetuning f;
   f.model = ClassifierModel(data.artifact.spec);
   if (c.init.pretrained) load_encoder_weights(c.init.pretrain_run / "encoder.pt", *f.model->encoder);
-  // Two groups, so the encoder can learn at encoder_lr_scale times the head's rate.
-  f.optimizer = make_optimizer({{f.model->encoder->parameters(), c.encoder_lr_scale}, {f.model->head->parameters(), 1.0}},
+  if (c.init.pretrained && f.model->decoder) load_decoder_weights(c.init.pretrain_run / "encoder.pt", *f.model->decoder);
+  if (is_probe(c.head.kind)) return f;  // fitted on frozen features, no optimiser
+  // Two groups, so the encoder (and decoder) can learn at encoder_lr_scale times the head's rate.
+  f.optimizer = make_optimizer({{f.model->extractor_parameters(), c.encoder_lr_scale}, {f.model->head_parameters(), 1.0}},
                                c.train);
   return f;
 }
@@ -195,13 +199,13 @@ bool encoder_frozen(const FinetuneConfig& c, int epoch) {
 }
 
 void set_frozen(ClassifierModel& model, bool frozen) {
-  for (auto& parameter : model->encoder->parameters()) parameter.set_requires_grad(!frozen);
+  for (auto& parameter : model->extractor_parameters()) parameter.set_requires_grad(!frozen);
 }
 
 // Training mode, but a frozen encoder keeps its normalisation statistics too.
 void train_mode(ClassifierModel& model, bool frozen) {
   model->train();
-  if (frozen) model->encoder->eval();
+  if (frozen) model->extractor_eval();
 }
 
 std::string format(const char* pattern, double value) {
@@ -345,6 +349,18 @@ FinetuneResult test_best(RunLifecycle& run, const FinetuneData& data, const Epoc
   return result;
 }
 
+// ---- probe heads: fit on frozen features of the budgeted chips, then test
+
+FinetuneResult fit_and_test_probe(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const FinetuneConfig& c) {
+  fit_probe(f.model, data.chips, data.train, data.class_weights, c.train.batch, c.train.seed);
+  if (run.is_writer()) {
+    save_classifier(run.folder().file("model.pt"), f.model, data.artifact);
+    write_probe_features(run.folder().file("features.csv"), f.model, data.chips, data.train, data.split.test,
+                         c.train.batch);
+  }
+  return test_best(run, data, EpochState{}, c);
+}
+
 }  // namespace
 
 FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& options) {
@@ -356,6 +372,10 @@ FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& opti
   run.execute([&] {
     const FinetuneData data = prepare_split(c, run);
     Finetuning model = build_model(c, data);
+    if (is_probe(c.head.kind)) {
+      result = fit_and_test_probe(run, model, data, c);
+      return RunOutcome{};
+    }
     EpochState state = options.resume ? restore(run, model, data) : EpochState{};
     parallel.prepare(*model.model);
     // The head's dropout draws from torch's generator, seeded alike everywhere: without this

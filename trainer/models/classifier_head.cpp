@@ -28,8 +28,8 @@ ClassifierHeadImpl::ClassifierHeadImpl(std::int64_t in_features, std::int64_t cl
 }
 
 torch::Tensor ClassifierHeadImpl::forward(torch::Tensor x) {
-  // (B, C, h, w) -> (B, C)
-  x = pool(x).flatten(/*start_dim=*/1);
+  // (B, C, h, w) -> (B, C); features already read out (B, F) pass as they are
+  if (x.dim() == 4) x = pool(x).flatten(/*start_dim=*/1);
   x = dropout(x);
   if (hidden) {
     // -> (B, hidden)

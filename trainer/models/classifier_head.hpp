@@ -1,5 +1,6 @@
-// The fine-tuning head on an encoder's deepest stage: global average pooling, dropout and
-// a linear layer to class logits, optionally through one hidden layer with ReLU.
+// The trained fine-tuning head: on an encoder's deepest stage global average pooling, or on
+// features already read out (models/head_spec.hpp), then dropout and a linear layer to class
+// logits, optionally through one hidden layer with ReLU.
 // Softmax and class weights belong to the loss, not here.
 #pragma once
 
@@ -17,7 +18,7 @@ class ClassifierHeadImpl : public torch::nn::Module {
   ClassifierHeadImpl(std::int64_t in_features, std::int64_t classes, double dropout,
                      std::int64_t hidden = 0);
 
-  // (B, in_features, h, w) -> (B, classes) logits
+  // (B, in_features, h, w) or (B, in_features) -> (B, classes) logits
   torch::Tensor forward(torch::Tensor x);
 
  private:

@@ -66,6 +66,7 @@ ColourDecoderImpl::ColourDecoderImpl(const std::vector<std::int64_t>& stage_chan
     steps_.push_back(register_module("up" + std::to_string(stride),
                                      DecoderStep(in_channels, skip_channels, channels)));
     skip_stage_.push_back(skip);
+    step_channels_.push_back(channels);
     in_channels = channels;
     channels /= 2;
   }
@@ -78,16 +79,22 @@ ColourDecoderImpl::ColourDecoderImpl(const std::vector<std::int64_t>& stage_chan
 }
 
 torch::Tensor ColourDecoderImpl::forward(const std::vector<torch::Tensor>& stages) {
+  return forward_steps(stages).back();
+}
+
+std::vector<torch::Tensor> ColourDecoderImpl::forward_steps(const std::vector<torch::Tensor>& stages) {
+  std::vector<torch::Tensor> outputs;
   // (B, Cdeep, H/S, W/S)
   torch::Tensor x = stages.back();
   // each step: (B, C, h, w) -> (B, C', 2h, 2w); after all: (B, Clast, H, W)
   for (std::size_t i = 0; i < steps_.size(); ++i) {
     const int skip = skip_stage_[i];
     x = steps_[i](x, skip >= 0 ? stages[skip] : torch::Tensor());
+    outputs.push_back(x);
   }
   // -> (B, output_channels, H, W)
-  x = head(x);
-  return x;
+  outputs.push_back(head(x));
+  return outputs;
 }
 
 }  // namespace tinct

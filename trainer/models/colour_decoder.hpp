@@ -37,11 +37,17 @@ class ColourDecoderImpl : public torch::nn::Module {
 
   // The encoder's stages -> (B, output_channels(), H, W), H = deepest stage height x stride.
   torch::Tensor forward(const std::vector<torch::Tensor>& stages);
+  // Every step's output (up<deepest/2> first, up1 last, at chip resolution), then the
+  // output of forward() last. For readouts that keep the decoder as a feature extractor.
+  std::vector<torch::Tensor> forward_steps(const std::vector<torch::Tensor>& stages);
   std::int64_t output_channels() const { return output_channels_; }
+  // Channels of each step's output, in forward_steps() order (without the output).
+  const std::vector<std::int64_t>& step_channels() const { return step_channels_; }
 
  private:
   std::vector<DecoderStep> steps_;
   std::vector<int> skip_stage_;  // per step: the stage concatenated, or -1
+  std::vector<std::int64_t> step_channels_;
   torch::nn::Conv2d head{nullptr};
   std::int64_t output_channels_ = 0;
 };

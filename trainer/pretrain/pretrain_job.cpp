@@ -83,7 +83,7 @@ void save_state(Training& t, std::int64_t done, const MetricsLog& metrics) {
 void save_encoder_artifact(Training& t) {
   if (!t.run.is_writer()) return;
   save_encoder(t.run.folder().file("encoder.pt"), *t.model->encoder,
-               {t.config.model, t.chips.normalisation(), t.chips.chip_size()});
+               {t.config.model, t.chips.normalisation(), t.chips.chip_size()}, t.model->decoder.get());
 }
 
 void write_preview(Training& t, const ColourObjective& objective, const PreviewCaption& caption) {

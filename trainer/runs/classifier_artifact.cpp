@@ -14,6 +14,11 @@ void save_classifier(const fs::path& file, const ClassifierModel& model, const C
   archive.text("classes", join_lines(artifact.classes));
   archive.number("dropout", artifact.spec.dropout);
   archive.integer("hidden", artifact.spec.hidden);
+  archive.text("head_pool", to_string(artifact.spec.head.pool));
+  archive.text("head_kind", to_string(artifact.spec.head.kind));
+  archive.integer("head_k", artifact.spec.head.k);
+  archive.number("head_l2", artifact.spec.head.l2);
+  archive.integer("head_colour_channels", artifact.spec.head.colour_channels);
   archive.save(file);
 }
 
@@ -25,6 +30,14 @@ ClassifierModel load_classifier(const fs::path& file, ClassifierArtifact& artifa
   artifact.spec.classes = static_cast<int>(artifact.classes.size());
   artifact.spec.dropout = archive.number("dropout");
   artifact.spec.hidden = static_cast<int>(archive.integer("hidden"));
+  if (archive.has("head_pool")) {  // model.pt files before head pools have the global trained head
+    HeadSpec& head = artifact.spec.head;
+    head.pool = head_pool_from_name(archive.text("head_pool"), file.string());
+    head.kind = head_kind_from_name(archive.text("head_kind"), file.string());
+    head.k = static_cast<int>(archive.integer("head_k"));
+    head.l2 = archive.number("head_l2");
+    head.colour_channels = static_cast<int>(archive.integer("head_colour_channels"));
+  }
   ClassifierModel model(artifact.spec);
   archive.module("weights", *model);
   return model;

@@ -22,11 +22,15 @@ struct EncoderArtifact {
   int chip_size = 0;
 };
 
+// `decoder` (the colour decoder, optional) is kept too, for readouts that use it.
 void save_encoder(const std::filesystem::path& file, const torch::nn::Module& encoder,
-                  const EncoderArtifact& artifact);
+                  const EncoderArtifact& artifact, const torch::nn::Module* decoder = nullptr);
 // Reads the description only. Fails (usage) when `file` is not an encoder.pt.
 EncoderArtifact read_encoder_artifact(const std::filesystem::path& file);
 // Loads the weights into an encoder built from the artifact's spec.
 void load_encoder_weights(const std::filesystem::path& file, torch::nn::Module& encoder);
+// Loads the colour decoder's weights; fails (usage) when the file holds none (encoder.pt
+// written before decoders were kept: run tinct pretrain again).
+void load_decoder_weights(const std::filesystem::path& file, torch::nn::Module& decoder);
 
 }  // namespace tinct
