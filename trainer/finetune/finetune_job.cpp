@@ -351,11 +351,19 @@ FinetuneResult test_best(RunLifecycle& run, const FinetuneData& data, const Epoc
 
 // ---- probe heads: fit on frozen features of the budgeted chips, then test
 
+// A probe needs no early stopping, so the validation carved from the budget is fitted on too.
+std::vector<ChipRef> budgeted_labels(const LabelSplit& split) {
+  std::vector<ChipRef> labels = split.train;
+  labels.insert(labels.end(), split.validation.begin(), split.validation.end());
+  return labels;
+}
+
 FinetuneResult fit_and_test_probe(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const FinetuneConfig& c) {
-  fit_probe(f.model, data.chips, data.train, data.class_weights, c.train.batch, c.train.seed);
+  const std::vector<ChipRef> labels = budgeted_labels(data.split);
+  fit_probe(f.model, data.chips, labels, data.class_weights, c.train.batch, c.train.seed);
   if (run.is_writer()) {
     save_classifier(run.folder().file("model.pt"), f.model, data.artifact);
-    write_probe_features(run.folder().file("features.csv"), f.model, data.chips, data.train, data.split.test,
+    write_probe_features(run.folder().file("features.csv"), f.model, data.chips, labels, data.split.test,
                          c.train.batch);
   }
   return test_best(run, data, EpochState{}, c);
