@@ -1,8 +1,8 @@
 #!/usr/bin/env bash
-# Speed and memory figures of tinct against their floors and its plain PyTorch peer,
-# measured side by side in one run on this machine (interleaved rounds, best and
-# median) and printed as tables. Not a test: the goals are printed beside the figures,
-# nothing fails on a slow machine. One script per section under scripts/bench/.
+# Speed and memory figures of tinct against their floors, naive baselines and its plain
+# PyTorch peer, measured side by side in one run on this machine (interleaved rounds, best
+# and median) and printed as tables. Not a test: the goals are printed beside the figures,
+# nothing fails on a slow machine. One script per section under scripts/bench/;
 # TINCT_BENCH_ROUNDS (default 3) sets the rounds, TINCT_BENCH_DIR keeps the generated data.
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -11,11 +11,10 @@ cmake --build build -j"$(nproc)" --target tinct_train_bench tinct_assess_bench t
   tinct_allreduce_bench > /dev/null
 work=${TINCT_BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
-bench=scripts/bench
-/usr/bin/python3 $bench/pair_bench.py "$PWD/build/tinct" "$work"
-/usr/bin/python3 $bench/peer_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
-/usr/bin/python3 $bench/train_options_bench.py "$PWD/build/tinct_train_bench"
-/usr/bin/python3 $bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
+/usr/bin/python3 scripts/bench/pair_bench.py "$PWD/build/tinct" "$work"
+/usr/bin/python3 scripts/bench/peer_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
+/usr/bin/python3 scripts/bench/train_options_bench.py "$PWD/build/tinct_train_bench"
+/usr/bin/python3 scripts/bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
 build/tinct_assess_bench 5000 256 20000
-/usr/bin/python3 $bench/geotiff_bench.py "$PWD/build/tinct_geotiff_tool" "$work"
+/usr/bin/python3 scripts/bench/geotiff_bench.py "$PWD/build/tinct_geotiff_tool" "$work"
 build/tinct_allreduce_bench 2 20
