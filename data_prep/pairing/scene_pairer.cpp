@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <future>
 #include <limits>
 #include <memory>
 #include <optional>
@@ -19,10 +20,10 @@ namespace tinct {
 namespace {
 
 constexpr double kVisibleMin = 400, kVisibleMax = 700;  // nm
-// Rows of a strip in the single pass: a whole row of 256 x 256 tiles, so GDAL decodes
-// each tile once, on all cores, and a strip of a 12-band 10 000 px wide scene stays
-// near 120 MB.
-constexpr int kStripRows = 256;
+// Rows of a strip in the single pass: reads that span many tiles, so GDAL decodes
+// them on all cores (a decoded tile stays in GDAL's block cache for the next strip);
+// two strips of a 12-band 10 000 px wide scene stay near 120 MB.
+constexpr int kStripRows = 128;
 
 std::size_t add_band(std::vector<std::string>& bands, const std::string& name) {
   const auto found = std::find(bands.begin(), bands.end(), name);
@@ -105,11 +106,10 @@ class ScenePairer {
   }
 
   // Rows [top, top + rows) of every planned band, full width: planes of width x rows.
-  const std::vector<float>& read_strip(int top, int rows) const {
+  void read_strip(int top, int rows, std::vector<float>& strip) const {
     const std::size_t n = static_cast<std::size_t>(scene_.grid().width) * rows;
-    strip_.resize(plan_.bands.size() * n);
-    scene_.read(0, top, scene_.grid().width, rows, strip_.data());
-    return strip_;
+    strip.resize(plan_.bands.size() * n);
+    scene_.read(0, top, scene_.grid().width, rows, strip.data());
   }
 
   // Adds rows [from, to) of the strip starting at `top` to the stretch histograms.
@@ -234,7 +234,7 @@ class ScenePairer {
   BandPlan plan_;
   Scene scene_;
   std::unique_ptr<AlignedSource> colour_raster_;
-  mutable std::vector<float> planes_, rgb_, strip_;
+  mutable std::vector<float> planes_, rgb_;
 };
 
 StoreScene describe(const SceneSpec& spec, const Scene& scene, const ShiftReport& shift) {
@@ -288,19 +288,39 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
   std::vector<float> inputs, rgb;
   std::vector<std::uint8_t> lab(3 * n), valid;
   Progress progress("pair " + spec.id, result.tally.planned, "chips");
-  int counted = 0;  // rows [0, counted) are in the stretch histograms
+  // Strips of whole chip rows, each read while the one before is cut into chips.
+  struct Strip {
+    std::size_t first, end;
+    int top, rows;
+  };
+  std::vector<Strip> strips;
   for (std::size_t first = 0; first < windows.size();) {
     const int top = windows[first].row;
     std::size_t end = first;
     while (end < windows.size() && windows[end].row + size <= top + std::max(kStripRows, size)) ++end;
-    const int rows = windows[end - 1].row + size - top;
-    const std::vector<float>& strip = pairer.read_strip(top, rows);
-    pairer.count_colour_rows(counted, top, fit);
-    if (top + rows > counted) pairer.count_colour(strip, top, rows, std::max(top, counted), top + rows, fit);
-    counted = std::max(counted, top + rows);
-    for (std::size_t w = first; w < end; ++w) {
+    strips.push_back({first, end, top, windows[end - 1].row + size - top});
+    first = end;
+  }
+  std::vector<float> strip, next;
+  std::future<void> reading;  // declared after the buffers, so it ends before they do
+  const auto read_ahead = [&](std::size_t k) {
+    if (k < strips.size()) {
+      reading = std::async(std::launch::async, [&pairer, &next, s = strips[k]] { pairer.read_strip(s.top, s.rows, next); });
+    }
+  };
+  read_ahead(0);
+  int counted = 0;  // rows [0, counted) are in the stretch histograms
+  for (std::size_t k = 0; k < strips.size(); ++k) {
+    reading.get();
+    std::swap(strip, next);
+    read_ahead(k + 1);
+    const Strip& s = strips[k];
+    pairer.count_colour_rows(counted, s.top, fit);
+    if (s.top + s.rows > counted) pairer.count_colour(strip, s.top, s.rows, std::max(s.top, counted), s.top + s.rows, fit);
+    counted = std::max(counted, s.top + s.rows);
+    for (std::size_t w = s.first; w < s.end; ++w) {
       progress.update(static_cast<std::int64_t>(w) + 1);
-      const double valid_fraction = pairer.cut_chip(strip, top, rows, windows[w], inputs, rgb, valid);
+      const double valid_fraction = pairer.cut_chip(strip, s.top, s.rows, windows[w], inputs, rgb, valid);
       if (valid_fraction < config.chips.min_valid) {
         ++result.tally.below_min_valid;
         continue;
@@ -309,7 +329,6 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
       spill.put(rgb.data());
       ++result.tally.written;
     }
-    first = end;
   }
   pairer.count_colour_rows(counted, grid.height, fit);
   progress.finish();
