@@ -22,7 +22,7 @@ PEER = os.path.join(os.path.dirname(__file__), "peer_pretrain.py")
 PYTHON = "/usr/bin/python3"
 THREADS = os.cpu_count()
 BATCH, CHIP, BANDS = 32, 64, 12
-STEPS = {"compact": (12, 40), "resnet18": (5, 16)}  # compute-only, full loop
+STEPS = {"compact": (10, 30), "resnet18": (4, 12)}  # compute-only, full loop
 WORKERS = int(os.environ.get("TINCT_BENCH_PEER_WORKERS", "2"))
 
 

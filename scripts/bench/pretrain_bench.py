@@ -16,7 +16,7 @@ sys.path.insert(0, os.path.dirname(__file__))
 from bench_common import ROUNDS, best_median, make_store, print_table  # noqa: E402
 
 
-def pretrain(tinct, work, store, name, steps=60):
+def pretrain(tinct, work, store, name, steps=30):
     config = os.path.join(work, name + ".yaml")
     with open(config, "w") as f:
         f.write(f"""config: pretrain
@@ -57,7 +57,7 @@ def main(tinct, bench, work):
     loop_best, loop_med = best_median(loops)
     step_best, step_med = best_median(steps)
     rows = [
-        ("setting", f"compact, 12 bands, 64 px, batch 32, 60 steps, {ROUNDS} interleaved rounds", ""),
+        ("setting", f"compact, 12 bands, 64 px, batch 32, 30 steps, {ROUNDS} interleaved rounds", ""),
         (f"peak RSS, {size[small]:.1f} GB store", f"best {s_best:.0f} MB, median {s_med:.0f} MB", "goal < 600 MB"),
         (f"peak RSS, {size[large]:.1f} GB store", f"best {l_best:.0f} MB, median {l_med:.0f} MB", "goal < 600 MB"),
         ("growth with the store (medians)", f"{100 * (l_med / s_med - 1):+.1f} %", "goal within 10 %"),

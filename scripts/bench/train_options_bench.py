@@ -16,7 +16,7 @@ import sys
 sys.path.insert(0, os.path.dirname(__file__))
 from bench_common import ROUNDS, best_median, has_native_bf16, machine_line, print_table  # noqa: E402
 
-STEPS = {"compact": "12", "resnet18": "5"}
+STEPS = {"compact": "10", "resnet18": "4"}
 PINNED = {"OMP_PROC_BIND": "close", "OMP_PLACES": "cores"}
 
 

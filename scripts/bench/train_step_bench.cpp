@@ -51,10 +51,6 @@ int main(int argc, char** argv) {
   const int chip = std::stoi(argv[3]), batch = std::stoi(argv[4]), steps = std::stoi(argv[5]);
   const bool channels_last = argc > 6 && std::string(argv[6]) == "1";
   const bool bf16 = argc > 7 && std::string(argv[7]) == "bf16";
-  if (bf16) {
-    at::autocast::set_autocast_cpu_dtype(at::kBFloat16);
-    at::autocast::set_cpu_enabled(true);
-  }
   torch::manual_seed(0);
   tinct::ColourisationModel model(spec);
   const std::int64_t macs = tinct::conv_linear_macs(model, {1, spec.encoder.bands, chip, chip});
@@ -64,6 +60,10 @@ int main(int argc, char** argv) {
     for (auto& p : model->parameters()) {
       if (p.dim() == 4) p.set_data(p.contiguous(memory));
     }
+  }
+  if (bf16) {  // after counting MACs, which runs a float forward
+    at::autocast::set_autocast_cpu_dtype(at::kBFloat16);
+    at::autocast::set_cpu_enabled(true);
   }
   const torch::Tensor x = torch::randn({batch, spec.encoder.bands, chip, chip}).contiguous(memory);
   const torch::Tensor target = torch::rand({batch, 3, chip, chip});
