@@ -54,8 +54,8 @@ def best_median(values, higher_is_better=True):
     return best, statistics.median(values)
 
 
-def print_table(title, rows):
+def print_table(title, rows, flush=False):
     width = max(len(title), *(len(r[0]) for r in rows))
     print(f"\n{title:<{width}}  {'figure':<60} goal")
     for name, value, goal in rows:
-        print(f"{name:<{width}}  {value:<60} {goal}")
+        print(f"{name:<{width}}  {value:<60} {goal}", flush=flush)

@@ -77,6 +77,29 @@ def numpy_matmul():
     return float(run([PYTHON, PEER, "matmul", "2048", str(THREADS)], env=env)[0])
 
 
+def report(figures, steps, rounds):
+    best_mm, best_np = max(figures["mm"]), max(figures["numpy"])
+    peak = max(best_mm, best_np)
+    rows = [("machine", machine_line(), ""),
+            ("setting", f"12 bands, 64 px, batch {BATCH}, {THREADS} threads, {rounds} interleaved rounds, "
+                        f"peer DataLoader {WORKERS} workers", ""),
+            ("2048^2 matmul, best", f"torch::mm {best_mm:.1f}, numpy {best_np:.1f} GFLOP/s: "
+                                    f"{'torch::mm' if best_mm >= best_np else 'numpy'} higher", "")]
+    for encoder, goal in (("compact", 1.5), ("resnet18", 1.25)):
+        params = steps[encoder][0]["params"]
+        for mode in ("step", "loop"):
+            tb, tm = best_median(figures[(f"tinct {mode}", encoder)])
+            pb, pm = best_median(figures[(f"peer {mode}", encoder)])
+            name = f"{encoder} ({params / 1e6:.2f} M par.) {'compute-only' if mode == 'step' else 'full loop'}"
+            rows.append((name, f"tinct {tb:.1f} / {tm:.1f}, peer {pb:.1f} / {pm:.1f} chips/s (best / median)", ""))
+            rows.append(("  ratio tinct / peer", f"{tb / pb:.2f}x of bests, {tm / pm:.2f}x of medians",
+                         f"goal >= {goal:.2f}x" if mode == "loop" else ""))
+        best_step = max(steps[encoder], key=lambda s: s["chips"])
+        share = best_step["gflops"] / peak
+        rows.append(("  step share of measured peak", f"{100 * share:.0f} % ({best_step['gflops']:.1f} GFLOP/s)", ""))
+    print_table(f"tinct vs plain PyTorch peer, after {rounds} of {ROUNDS} rounds", rows, flush=True)
+
+
 def main(tinct, bench, work):
     ensure_peer()
     store = make_store(tinct, work, 2, "bench2.pairs")
@@ -101,27 +124,9 @@ def main(tinct, bench, work):
                         value = value["chips"]
                     add((label, encoder), value)
         add("numpy", numpy_matmul())
+        report(figures, steps, r + 1)  # the figures so far, in case the run is cut short
 
-    best_mm, best_np = max(figures["mm"]), max(figures["numpy"])
-    peak = max(best_mm, best_np)
-    rows = [("machine", machine_line(), ""),
-            ("setting", f"12 bands, 64 px, batch {BATCH}, {THREADS} threads, {ROUNDS} interleaved rounds, "
-                        f"peer DataLoader {WORKERS} workers", ""),
-            ("2048^2 matmul, best", f"torch::mm {best_mm:.1f}, numpy {best_np:.1f} GFLOP/s: "
-                                    f"{'torch::mm' if best_mm >= best_np else 'numpy'} higher", "")]
-    for encoder, goal in (("compact", 1.5), ("resnet18", 1.25)):
-        params = steps[encoder][0]["params"]
-        for mode in ("step", "loop"):
-            tb, tm = best_median(figures[(f"tinct {mode}", encoder)])
-            pb, pm = best_median(figures[(f"peer {mode}", encoder)])
-            name = f"{encoder} ({params / 1e6:.2f} M par.) {'compute-only' if mode == 'step' else 'full loop'}"
-            rows.append((name, f"tinct {tb:.1f} / {tm:.1f}, peer {pb:.1f} / {pm:.1f} chips/s (best / median)", ""))
-            rows.append(("  ratio tinct / peer", f"{tb / pb:.2f}x of bests, {tm / pm:.2f}x of medians",
-                         f"goal >= {goal:.2f}x" if mode == "loop" else ""))
-        best_step = max(steps[encoder], key=lambda s: s["chips"])
-        share = best_step["gflops"] / peak
-        rows.append(("  step share of measured peak", f"{100 * share:.0f} % ({best_step['gflops']:.1f} GFLOP/s)", ""))
-    print_table("tinct vs plain PyTorch peer", rows)
+
 
 
 if __name__ == "__main__":

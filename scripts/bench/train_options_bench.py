@@ -26,6 +26,19 @@ def rate(bench, encoder, batch=32, channels_last="0", precision="fp32", env=None
     return float(out.stdout.split()[1])
 
 
+def option_rows(figures, variants, bf16):
+    rows = [("machine", machine_line(), "")]
+    for encoder in ("compact", "resnet18"):
+        ref_best, ref_med = best_median(figures[(encoder, "contiguous fp32")])
+        for name, _ in variants:
+            best, med = best_median(figures[(encoder, name)])
+            rows.append((f"{encoder}, {name}", f"best {best:.1f}, median {med:.1f} chips/s "
+                         f"({best / ref_best:.2f}x / {med / ref_med:.2f}x of contiguous fp32)", ""))
+    if not bf16:
+        rows.append(("bf16 autocast", "not available: no avx512_bf16 or amx_bf16 in /proc/cpuinfo", ""))
+    return rows
+
+
 def main(bench):
     bf16 = has_native_bf16()
     variants = [("contiguous fp32", {}), ("channels-last fp32", {"channels_last": "1"}),
@@ -38,16 +51,10 @@ def main(bench):
             order = variants if r % 2 == 0 else variants[::-1]
             for name, kw in order:
                 figures.setdefault((encoder, name), []).append(rate(bench, encoder, **kw))
-    rows = [("machine", machine_line(), "")]
-    for encoder in ("compact", "resnet18"):
-        ref_best, ref_med = best_median(figures[(encoder, "contiguous fp32")])
-        for name, _ in variants:
-            best, med = best_median(figures[(encoder, name)])
-            rows.append((f"{encoder}, {name}", f"best {best:.1f}, median {med:.1f} chips/s "
-                         f"({best / ref_best:.2f}x / {med / ref_med:.2f}x of contiguous fp32)", ""))
-    if not bf16:
-        rows.append(("bf16 autocast", "not available: no avx512_bf16 or amx_bf16 in /proc/cpuinfo", ""))
+        print_table(f"training-step options, after {r + 1} of {ROUNDS} rounds",
+                    option_rows(figures, variants, bf16), flush=True)
 
+    rows = []
     per_batch = {}
     for r in range(ROUNDS):
         for batch in ((16, 32, 64) if r % 2 == 0 else (64, 32, 16)):
@@ -58,7 +65,7 @@ def main(bench):
         rows.append((f"compact step, batch {batch}", f"best {1000 * best:.0f} ms, median "
                      f"{1000 * statistics.median(per_batch[batch]):.0f} ms ({best / batch / base:.2f}x linear)",
                      "linear: 1.00x"))
-    print_table("training-step options", rows)
+    print_table("pretraining step over batch size", rows)
 
 
 if __name__ == "__main__":
