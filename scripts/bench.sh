@@ -1,7 +1,9 @@
 #!/usr/bin/env bash
-# Speed and memory figures of tinct against their floors and naive baselines,
-# measured in one run on this machine and printed as tables. Not a test: the
-# goals are printed beside the figures, nothing fails on a slow machine.
+# Speed and memory figures of tinct against their floors, naive baselines and its plain
+# PyTorch peer, measured side by side in one run on this machine (interleaved rounds, best
+# and median) and printed as tables. Not a test: the goals are printed beside the figures,
+# nothing fails on a slow machine. One script per section under scripts/bench/;
+# TINCT_BENCH_ROUNDS (default 3) sets the rounds, TINCT_BENCH_DIR keeps the generated data.
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh > /dev/null
@@ -10,6 +12,8 @@ cmake --build build -j"$(nproc)" --target tinct_train_bench tinct_assess_bench t
 work=${TINCT_BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
 /usr/bin/python3 scripts/bench/pair_bench.py "$PWD/build/tinct" "$work"
+/usr/bin/python3 scripts/bench/peer_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
+/usr/bin/python3 scripts/bench/train_options_bench.py "$PWD/build/tinct_train_bench"
 /usr/bin/python3 scripts/bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
 build/tinct_assess_bench 5000 256 20000
 /usr/bin/python3 scripts/bench/geotiff_bench.py "$PWD/build/tinct_geotiff_tool" "$work"

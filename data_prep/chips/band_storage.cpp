@@ -41,8 +41,14 @@ void to_stored_values(const std::vector<float>& values, const std::vector<std::u
   const std::size_t n = valid.size();
   if (storage == StorageType::uint16) {
     u16.resize(values.size());
-    for (std::size_t i = 0; i < values.size(); ++i) {
-      u16[i] = valid[i % n] ? static_cast<std::uint16_t>(std::clamp(std::lround(values[i]), 0L, 65535L)) : 0;
+    // lround then clamp to 0..65535, per plane without a division per value: for
+    // v >= 0, lround(v) is v + 0.5 truncated, exact in double; NaN and v <= 0 give 0.
+    for (std::size_t start = 0; start < values.size(); start += n) {
+      for (std::size_t i = 0; i < n; ++i) {
+        const float v = values[start + i];
+        const double clamped = v > 0 ? std::min(static_cast<double>(v), 65535.0) : 0.0;  // NaN -> 0
+        u16[start + i] = valid[i] ? static_cast<std::uint16_t>(static_cast<std::int32_t>(clamped + 0.5)) : 0;
+      }
     }
   } else {
     f32.resize(values.size());

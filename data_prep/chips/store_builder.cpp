@@ -14,10 +14,8 @@ StoreBuilder::StoreBuilder(const StorePlan& plan, const std::vector<const SceneS
       writer_(plan.output, chip_store_layout(plan.kind, plan.chip_size, plan.inputs, storage_, sensor),
               plan.replace) {}
 
-void StoreBuilder::add_chip(const SceneSpec& scene, const TargetGrid& grid, int col, int row,
-                            double valid_fraction, const std::vector<float>& planes,
-                            const std::vector<std::uint8_t>& valid, const std::uint8_t* colour,
-                            const ChipLabel* label) {
+ChipRecord StoreBuilder::record_of(const SceneSpec& scene, const TargetGrid& grid, int col, int row,
+                                   double valid_fraction) const {
   const double half = plan_.chip_size / 2.0;
   ChipRecord record;
   record.index = writer_.chip_count();
@@ -29,14 +27,31 @@ void StoreBuilder::add_chip(const SceneSpec& scene, const TargetGrid& grid, int 
   record.date = scene.date;
   record.valid_fraction = valid_fraction;
   record.block = block_of(record.x, record.y, plan_.block_size);
+  return record;
+}
+
+const void* StoreBuilder::stored(const std::vector<float>& planes, const std::vector<std::uint8_t>& valid) {
+  to_stored_values(planes, valid, storage_, u16_, f32_);
+  return storage_ == StorageType::uint16 ? static_cast<const void*>(u16_.data()) : f32_.data();
+}
+
+void StoreBuilder::add_chip(const SceneSpec& scene, const TargetGrid& grid, int col, int row,
+                            double valid_fraction, const std::vector<float>& planes,
+                            const std::vector<std::uint8_t>& valid, const std::uint8_t* colour,
+                            const ChipLabel* label) {
+  ChipRecord record = record_of(scene, grid, col, row, valid_fraction);
   if (label != nullptr) {
     record.label = label->label;
     record.group = label->group;
     record.source_id = label->source_id;
   }
-  to_stored_values(planes, valid, storage_, u16_, f32_);
-  const void* bands = storage_ == StorageType::uint16 ? static_cast<const void*>(u16_.data()) : f32_.data();
-  writer_.add(record, bands, colour, valid.data());
+  writer_.add(record, stored(planes, valid), colour, valid.data());
+}
+
+void StoreBuilder::add_chip_awaiting_colour(const SceneSpec& scene, const TargetGrid& grid, int col, int row,
+                                            double valid_fraction, const std::vector<float>& planes,
+                                            const std::vector<std::uint8_t>& valid) {
+  writer_.add_awaiting_colour(record_of(scene, grid, col, row, valid_fraction), stored(planes, valid), valid.data());
 }
 
 void StoreBuilder::add_file(const std::string& name, const std::string& contents) {

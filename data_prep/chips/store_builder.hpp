@@ -48,6 +48,13 @@ class StoreBuilder {
                 const std::vector<float>& planes, const std::vector<std::uint8_t>& valid,
                 const std::uint8_t* colour, const ChipLabel* label = nullptr);
 
+  // pair's single pass: the chip now, its colour codes later, in chip order (see
+  // StoreWriter::add_awaiting_colour).
+  void add_chip_awaiting_colour(const SceneSpec& scene, const TargetGrid& grid, int col, int row,
+                                double valid_fraction, const std::vector<float>& planes,
+                                const std::vector<std::uint8_t>& valid);
+  void add_colour(const std::uint8_t* colour) { writer_.add_colour(colour); }
+
   // A file of its own inside the store (e.g. label's dropped.csv), written atomically.
   void add_file(const std::string& name, const std::string& contents);
 
@@ -56,6 +63,9 @@ class StoreBuilder {
   void finish(std::vector<StoreScene> scenes, std::vector<std::string> classes = {});
 
  private:
+  ChipRecord record_of(const SceneSpec& scene, const TargetGrid& grid, int col, int row, double valid_fraction) const;
+  const void* stored(const std::vector<float>& planes, const std::vector<std::uint8_t>& valid);
+
   StorePlan plan_;
   const SensorProfile& sensor_;
   StorageType storage_;

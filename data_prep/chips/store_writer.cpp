@@ -66,6 +66,26 @@ void StoreWriter::require_open(const char* step) const {
 
 void StoreWriter::add(const ChipRecord& record, const void* bands, const std::uint8_t* colour,
                       const std::uint8_t* valid) {
+  append(record, bands, colour, valid, /*colour_later=*/false);
+}
+
+void StoreWriter::add_awaiting_colour(const ChipRecord& record, const void* bands, const std::uint8_t* valid) {
+  append(record, bands, nullptr, valid, /*colour_later=*/true);
+}
+
+void StoreWriter::add_colour(const std::uint8_t* colour) {
+  require_open("add a colour");
+  if (chips_awaiting_colour() == 0 || colour == nullptr) {
+    fail_runtime("store " + target().string() + ": add_colour() without a chip awaiting its colour");
+  }
+  state_ = State::failed;
+  colour_->write(colour, colour_bytes_);
+  ++colour_count_;
+  state_ = State::open;
+}
+
+void StoreWriter::append(const ChipRecord& record, const void* bands, const std::uint8_t* colour,
+                         const std::uint8_t* valid, bool colour_later) {
   require_open("add a chip");
   const auto fail_chip = [&](const std::string& problem) {
     fail_runtime("store " + target().string() + ", chip " + std::to_string(chip_count_) + ": " + problem);
@@ -74,12 +94,16 @@ void StoreWriter::add(const ChipRecord& record, const void* bands, const std::ui
     fail_chip("the record's index is " + std::to_string(record.index) + "; add chips in index order");
   }
   if (bands == nullptr || valid == nullptr) fail_chip("bands and valid are required");
-  if ((colour != nullptr) != layout_.has_colour) {
+  if (colour_later && !layout_.has_colour) fail_chip("the store has no colour to add later");
+  if (!colour_later && (colour != nullptr) != layout_.has_colour) {
     fail_chip(layout_.has_colour ? "colour is required" : "the store has no colour; pass nullptr");
+  }
+  if (!colour_later && chips_awaiting_colour() > 0) {
+    fail_chip(std::to_string(chips_awaiting_colour()) + " earlier chips await their colour; add_colour() first");
   }
   state_ = State::failed;  // until every file has its share of this chip
   bands_->write(bands, band_bytes_);
-  if (colour_) colour_->write(colour, colour_bytes_);
+  if (colour_ && colour) colour_->write(colour, colour_bytes_);
   valid_->write(valid, valid_bytes_);
   row_.clear();
   append_chip_row(row_, record, layout_.kind == StoreKind::labels);
@@ -87,6 +111,8 @@ void StoreWriter::add(const ChipRecord& record, const void* bands, const std::ui
   scenes_seen_.insert(record.scene);
   if (layout_.kind == StoreKind::labels) labels_seen_.insert(record.label);
   ++chip_count_;
+  if (colour) ++colour_count_;
+  if (!layout_.has_colour) colour_count_ = chip_count_;
   state_ = State::open;
 }
 
@@ -106,6 +132,10 @@ void StoreWriter::finish(StoreManifest header_fields) {
   if (chip_count_ == 0) {
     fail_runtime("store " + target().string() +
                  ": no chips to write; check the scenes, their nodata and the chip plan");
+  }
+  if (chips_awaiting_colour() > 0) {
+    fail_runtime("store " + target().string() + ": " + std::to_string(chips_awaiting_colour()) +
+                 " chips still await their colour at finish()");
   }
   StoreManifest manifest = complete_manifest(std::move(header_fields));
   check_chips_against(manifest);

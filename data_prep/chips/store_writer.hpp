@@ -31,6 +31,12 @@ class StoreWriter {
   // 1 for valid pixels. record.index must be the chip's position (chip_count()).
   void add(const ChipRecord& record, const void* bands, const std::uint8_t* colour,
            const std::uint8_t* valid);
+  // For a writer that knows colour only after a whole pass (pair fits the colour stretch
+  // from the pixels it reads once): adds a chip of a colour store without its colour;
+  // add_colour() then gives the colours in chip order, all before the next add() and finish().
+  void add_awaiting_colour(const ChipRecord& record, const void* bands, const std::uint8_t* valid);
+  void add_colour(const std::uint8_t* colour);
+  std::int64_t chips_awaiting_colour() const { return chip_count_ - colour_count_; }
 
   // A further file inside the store (e.g. a label store's dropped.csv), written
   // atomically; it becomes part of the store when finish() renames it into place.
@@ -48,6 +54,8 @@ class StoreWriter {
  private:
   enum class State { open, failed, finished };
   void require_open(const char* step) const;
+  void append(const ChipRecord& record, const void* bands, const std::uint8_t* colour, const std::uint8_t* valid,
+              bool colour_later);
   StoreManifest complete_manifest(StoreManifest manifest) const;
   void check_chips_against(const StoreManifest& manifest) const;
   std::vector<BandStatistics> statistics_of_written() const;
@@ -65,6 +73,7 @@ class StoreWriter {
   std::set<std::string> scenes_seen_;
   std::set<std::string> labels_seen_;
   std::int64_t chip_count_ = 0;
+  std::int64_t colour_count_ = 0;
   State state_ = State::open;
 };
 

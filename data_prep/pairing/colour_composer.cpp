@@ -69,6 +69,31 @@ ColourComposer ColourComposer::for_byte_colour() {
   return ColourComposer({identity, identity, identity});
 }
 
+std::optional<StretchFit> StretchFit::for_types(const std::array<std::string, 3>& data_types) {
+  StretchFit fit;
+  for (const auto& type : data_types) {
+    const auto range = integer_range(type);
+    if (!range) return std::nullopt;
+    fit.histograms_.emplace_back(range->min, range->max, range->bins);
+  }
+  return fit;
+}
+
+void StretchFit::add(const float* red, const float* green, const float* blue, std::size_t n) {
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(red[i]) || !std::isfinite(green[i]) || !std::isfinite(blue[i])) continue;
+    histograms_[0].add(red[i]);
+    histograms_[1].add(green[i]);
+    histograms_[2].add(blue[i]);
+  }
+}
+
+ColourComposer StretchFit::composer(const StretchSettings& settings) const {
+  if (histograms_[0].count() == 0) fail_runtime("the colour bands hold no valid pixel in this scene");
+  return ColourComposer({make_stretch(histograms_[0], settings), make_stretch(histograms_[1], settings),
+                         make_stretch(histograms_[2], settings)});
+}
+
 ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& grid,
                                    const std::array<std::string, 3>& data_types,
                                    const StretchSettings& settings) {
@@ -82,15 +107,10 @@ ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& g
   if (!all_integer) ranges = measured_ranges(read, grid);
   std::vector<PercentileHistogram> histograms;
   for (const auto& r : ranges) histograms.emplace_back(r.min, r.max, r.bins);
-  for_each_strip(read, grid, [&](const float* rgb, std::size_t n) {
-    for (std::size_t i = 0; i < n; ++i) {
-      if (!all_finite(rgb, n, i)) continue;
-      for (int b = 0; b < 3; ++b) histograms[b].add(rgb[b * n + i]);
-    }
-  });
-  if (histograms[0].count() == 0) fail_runtime("the colour bands hold no valid pixel in this scene");
-  return ColourComposer({make_stretch(histograms[0], settings), make_stretch(histograms[1], settings),
-                         make_stretch(histograms[2], settings)});
+  StretchFit fit;
+  fit.histograms_ = std::move(histograms);
+  for_each_strip(read, grid, [&](const float* rgb, std::size_t n) { fit.add(rgb, rgb + n, rgb + 2 * n, n); });
+  return fit.composer(settings);
 }
 
 void ColourComposer::stretched(const float* rgb, std::size_t n, float* out) const {

@@ -7,7 +7,9 @@
 #include <array>
 #include <cstdint>
 #include <functional>
+#include <optional>
 #include <string>
+#include <vector>
 
 #include "colour/stretch.hpp"
 #include "raster/target_grid.hpp"
@@ -16,6 +18,24 @@ namespace tinct {
 
 // Reads red, green, blue (stored values, NaN invalid) over a window: 3 planes of w*h.
 using ColourReader = std::function<void(int col, int row, int width, int height, float* out)>;
+
+class ColourComposer;
+
+// The per-band percentile histograms of the stretch, fed strip by strip by whoever
+// reads the pixels (pair's single pass). Integer colour types only: their value range
+// is known before the first pixel.
+class StretchFit {
+ public:
+  // nullopt unless all three types are Byte, UInt16 or Int16.
+  static std::optional<StretchFit> for_types(const std::array<std::string, 3>& data_types);
+  // Pixels where all three are finite count; red, green, blue hold n values each.
+  void add(const float* red, const float* green, const float* blue, std::size_t n);
+  ColourComposer composer(const StretchSettings& settings) const;
+
+ private:
+  friend class ColourComposer;
+  std::vector<PercentileHistogram> histograms_;
+};
 
 class ColourComposer {
  public:
@@ -34,6 +54,7 @@ class ColourComposer {
   const std::array<BandStretch, 3>& stretches() const { return stretches_; }
 
  private:
+  friend class StretchFit;
   explicit ColourComposer(std::array<BandStretch, 3> stretches) : stretches_(stretches) {}
   void stretched(const float* rgb, std::size_t n, float* out) const;
 

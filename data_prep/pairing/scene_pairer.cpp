@@ -2,12 +2,15 @@
 
 #include <algorithm>
 #include <cmath>
+#include <future>
 #include <limits>
 #include <memory>
+#include <optional>
 #include <vector>
 
 #include "chips/chip_plan.hpp"
 #include "pairing/colour_composer.hpp"
+#include "pairing/colour_spill.hpp"
 #include "pairing/coregistration_check.hpp"
 #include "raster/scene.hpp"
 #include "util/log.hpp"
@@ -17,6 +20,10 @@ namespace tinct {
 namespace {
 
 constexpr double kVisibleMin = 400, kVisibleMax = 700;  // nm
+// Rows of a strip in the single pass: reads that span many tiles, so GDAL decodes
+// them on all cores (a decoded tile stays in GDAL's block cache for the next strip);
+// two strips of a 12-band 10 000 px wide scene stay near 120 MB.
+constexpr int kStripRows = 128;
 
 std::size_t add_band(std::vector<std::string>& bands, const std::string& name) {
   const auto found = std::find(bands.begin(), bands.end(), name);
@@ -78,8 +85,7 @@ class ScenePairer {
     return [this](int col, int row, int w, int h, float* out) { read_proxy(col, row, w, h, out); };
   }
 
-  ColourComposer fit_colour() const {
-    if (!config_.colour.stretched) return ColourComposer::for_byte_colour();  // stretch: none
+  std::array<std::string, 3> colour_types() const {
     std::array<std::string, 3> types;
     if (colour_raster_) {
       types.fill(colour_raster_->data_type());
@@ -87,6 +93,84 @@ class ScenePairer {
       const auto all = scene_.data_types();
       for (int b = 0; b < 3; ++b) types[b] = all[plan_.colour[b]];
     }
+    return types;
+  }
+
+  // The single pass reads whole strips of the scene's own bands: it needs chips in
+  // row order and, for a stretch, integer colour it can histogram as it goes.
+  std::optional<StretchFit> one_pass_fit(const std::vector<ChipWindow>& windows) const {
+    if (colour_raster_ || !config_.colour.stretched) return std::nullopt;
+    const auto by_row = [](const ChipWindow& a, const ChipWindow& b) { return a.row < b.row; };
+    if (!std::is_sorted(windows.begin(), windows.end(), by_row)) return std::nullopt;
+    return StretchFit::for_types(colour_types());
+  }
+
+  // Rows [top, top + rows) of every planned band, full width: planes of width x rows.
+  void read_strip(int top, int rows, std::vector<float>& strip) const {
+    const std::size_t n = static_cast<std::size_t>(scene_.grid().width) * rows;
+    strip.resize(plan_.bands.size() * n);
+    scene_.read(0, top, scene_.grid().width, rows, strip.data());
+  }
+
+  // Adds rows [from, to) of the strip starting at `top` to the stretch histograms.
+  void count_colour(const std::vector<float>& strip, int top, int rows, int from, int to, StretchFit& fit) const {
+    const std::size_t width = static_cast<std::size_t>(scene_.grid().width);
+    const std::size_t n = width * rows, skip = width * (from - top), count = width * (to - from);
+    const float* base = strip.data() + skip;
+    fit.add(base + plan_.colour[0] * n, base + plan_.colour[1] * n, base + plan_.colour[2] * n, count);
+  }
+
+  // Rows no chip covers still count for the stretch: read them, colour bands only.
+  void count_colour_rows(int from, int to, StretchFit& fit) const {
+    if (from >= to) return;
+    const Scene colour_view(scene_.spec(), config_.sensor, config_.colour.bands, config_.resolution, config_.align);
+    const std::size_t width = static_cast<std::size_t>(scene_.grid().width);
+    std::vector<float> rgb;
+    for (int top = from; top < to; top += kStripRows) {
+      const int rows = std::min(kStripRows, to - top);
+      const std::size_t n = width * rows;
+      rgb.resize(3 * n);
+      colour_view.read(0, top, static_cast<int>(width), rows, rgb.data());
+      fit.add(rgb.data(), rgb.data() + n, rgb.data() + 2 * n, n);
+    }
+  }
+
+  // One chip out of a strip that starts at row `top`: input planes, colour planes
+  // (stored values) and validity (every input and colour band finite). Returns the
+  // valid fraction.
+  double cut_chip(const std::vector<float>& strip, int top, int rows, const ChipWindow& window,
+                  std::vector<float>& inputs, std::vector<float>& rgb, std::vector<std::uint8_t>& valid) const {
+    const int size = config_.chips.size;
+    const std::size_t n = static_cast<std::size_t>(size) * size;
+    const std::size_t width = static_cast<std::size_t>(scene_.grid().width);
+    const std::size_t plane = width * rows;
+    const auto cut = [&](const std::vector<std::size_t>& which, float* out) {
+      for (std::size_t k = 0; k < which.size(); ++k) {
+        const float* from = strip.data() + which[k] * plane + (window.row - top) * width + window.col;
+        for (int r = 0; r < size; ++r) std::copy(from + r * width, from + r * width + size, out + k * n + r * size);
+      }
+    };
+    inputs.resize(plan_.inputs.size() * n);
+    cut(plan_.inputs, inputs.data());
+    rgb.resize(3 * n);
+    cut(plan_.colour, rgb.data());
+    valid.assign(n, 1);
+    for (std::size_t k = 0; k < plan_.inputs.size(); ++k) {
+      for (std::size_t i = 0; i < n; ++i) {
+        if (!std::isfinite(inputs[k * n + i])) valid[i] = 0;
+      }
+    }
+    std::size_t count = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!std::isfinite(rgb[i]) || !std::isfinite(rgb[n + i]) || !std::isfinite(rgb[2 * n + i])) valid[i] = 0;
+      count += valid[i];
+    }
+    return static_cast<double>(count) / static_cast<double>(n);
+  }
+
+  ColourComposer fit_colour() const {
+    if (!config_.colour.stretched) return ColourComposer::for_byte_colour();  // stretch: none
+    const std::array<std::string, 3> types = colour_types();
     // The stretch reads only the colour bands, through a view of its own.
     if (colour_raster_) return ColourComposer::fit(colour_reader(), scene_.grid(), types, config_.colour.stretch);
     const Scene colour_view(scene_.spec(), config_.sensor, config_.colour.bands, config_.resolution, config_.align);
@@ -163,21 +247,16 @@ StoreScene describe(const SceneSpec& spec, const Scene& scene, const ShiftReport
   return entry;
 }
 
-}  // namespace
 
-ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::uint64_t scene_number,
-                        StoreBuilder& store) {
-  const ScenePairer pairer(config, spec);
+// Chips read window by window, after the stretch is fitted in a pass of its own.
+void pair_by_windows(const PairConfig& config, const SceneSpec& spec, const ScenePairer& pairer,
+                     const std::vector<ChipWindow>& windows, StoreBuilder& store, ScenePairing& result) {
   const TargetGrid& grid = pairer.scene().grid();
-  for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
   const ColourComposer composer = pairer.fit_colour();
   const ShiftReport shift = measure_colour_shift(pairer.proxy_reader(), pairer.colour_reader(), composer, grid,
                                                  config.coregistration);
   judge_shift(shift, config.coregistration, spec.id);
-
-  ScenePairing result{describe(spec, pairer.scene(), shift), {}};
-  const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
-  result.tally.planned = static_cast<std::int64_t>(windows.size());
+  result.scene = describe(spec, pairer.scene(), shift);
   std::vector<float> inputs;
   std::vector<std::uint8_t> lab, valid;
   Progress progress("pair " + spec.id, result.tally.planned, "chips");
@@ -194,6 +273,96 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
     ++result.tally.written;
   }
   progress.finish();
+}
+
+// Every pixel decoded once: strips of whole tile rows (GDAL decodes a strip's tiles on
+// all cores), the stretch histogram fed from the same strips, the chips' colour parked
+// until the stretch is known and then converted to Lab.
+void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const ScenePairer& pairer,
+                      const std::vector<ChipWindow>& windows, StretchFit fit, StoreBuilder& store,
+                      ScenePairing& result) {
+  const TargetGrid& grid = pairer.scene().grid();
+  const int size = config.chips.size;
+  const std::size_t n = static_cast<std::size_t>(size) * size;
+  ColourSpill spill(3 * n);
+  std::vector<float> inputs, rgb;
+  std::vector<std::uint8_t> lab(3 * n), valid;
+  Progress progress("pair " + spec.id, result.tally.planned, "chips");
+  // Strips of whole chip rows, each read while the one before is cut into chips.
+  struct Strip {
+    std::size_t first, end;
+    int top, rows;
+  };
+  std::vector<Strip> strips;
+  for (std::size_t first = 0; first < windows.size();) {
+    const int top = windows[first].row;
+    std::size_t end = first;
+    while (end < windows.size() && windows[end].row + size <= top + std::max(kStripRows, size)) ++end;
+    strips.push_back({first, end, top, windows[end - 1].row + size - top});
+    first = end;
+  }
+  std::vector<float> strip, next;
+  std::future<void> reading;  // declared after the buffers, so it ends before they do
+  const auto read_ahead = [&](std::size_t k) {
+    if (k < strips.size()) {
+      reading = std::async(std::launch::async, [&pairer, &next, s = strips[k]] { pairer.read_strip(s.top, s.rows, next); });
+    }
+  };
+  read_ahead(0);
+  int counted = 0;  // rows [0, counted) are in the stretch histograms
+  for (std::size_t k = 0; k < strips.size(); ++k) {
+    reading.get();
+    std::swap(strip, next);
+    read_ahead(k + 1);
+    const Strip& s = strips[k];
+    pairer.count_colour_rows(counted, s.top, fit);
+    if (s.top + s.rows > counted) pairer.count_colour(strip, s.top, s.rows, std::max(s.top, counted), s.top + s.rows, fit);
+    counted = std::max(counted, s.top + s.rows);
+    for (std::size_t w = s.first; w < s.end; ++w) {
+      progress.update(static_cast<std::int64_t>(w) + 1);
+      const double valid_fraction = pairer.cut_chip(strip, s.top, s.rows, windows[w], inputs, rgb, valid);
+      if (valid_fraction < config.chips.min_valid) {
+        ++result.tally.below_min_valid;
+        continue;
+      }
+      store.add_chip_awaiting_colour(spec, grid, windows[w].col, windows[w].row, valid_fraction, inputs, valid);
+      spill.put(rgb.data());
+      ++result.tally.written;
+    }
+  }
+  pairer.count_colour_rows(counted, grid.height, fit);
+  progress.finish();
+
+  const ColourComposer composer = fit.composer(config.colour.stretch);
+  const ShiftReport shift = measure_colour_shift(pairer.proxy_reader(), pairer.colour_reader(), composer, grid,
+                                                 config.coregistration);
+  judge_shift(shift, config.coregistration, spec.id);
+  result.scene = describe(spec, pairer.scene(), shift);
+  spill.rewind();
+  std::vector<std::uint8_t> ignored(n);
+  for (std::int64_t chip = 0; chip < result.tally.written; ++chip) {
+    spill.get(rgb.data());
+    composer.compose(rgb.data(), n, lab.data(), ignored.data());
+    store.add_colour(lab.data());
+  }
+}
+
+}  // namespace
+
+ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::uint64_t scene_number,
+                        StoreBuilder& store) {
+  const ScenePairer pairer(config, spec);
+  for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
+  const TargetGrid& grid = pairer.scene().grid();
+  const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
+  ScenePairing result;
+  result.tally.planned = static_cast<std::int64_t>(windows.size());
+  std::optional<StretchFit> fit = pairer.one_pass_fit(windows);
+  if (fit && config.chips.max_per_scene == 0) {
+    pair_in_one_pass(config, spec, pairer, windows, std::move(*fit), store, result);
+  } else {
+    pair_by_windows(config, spec, pairer, windows, store, result);
+  }
   return result;
 }
 

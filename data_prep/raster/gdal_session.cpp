@@ -33,6 +33,9 @@ void ensure_gdal() {
     // GDAL's default block cache is 5 % of RAM; tinct reads each tile about once
     // in row order, so a small cache keeps memory bounded whatever the scene size.
     if (!CPLGetConfigOption("GDAL_CACHEMAX", nullptr)) GDALSetCacheMax64(kBlockCacheBytes);
+    // A read that spans several compressed GeoTIFF tiles decodes them on all cores
+    // (pair reads whole tile rows); a GDAL_NUM_THREADS set by the user wins.
+    if (!CPLGetConfigOption("GDAL_NUM_THREADS", nullptr)) CPLSetConfigOption("GDAL_NUM_THREADS", "ALL_CPUS");
   });
 }
 

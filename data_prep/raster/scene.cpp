@@ -72,6 +72,11 @@ std::vector<std::string> Scene::alignment_notes() const {
 
 void Scene::read(int col, int row, int width, int height, float* out) const {
   const std::size_t plane = static_cast<std::size_t>(width) * height;
+  if (reads_in_order()) {  // one file, bands in the asked order: no staging copy
+    sources_.front()->read(col, row, width, height, out);
+    if (mask_) apply_mask(col, row, width, height, out);
+    return;
+  }
   std::vector<std::size_t> offsets(sources_.size());
   std::size_t total = 0;
   for (std::size_t s = 0; s < sources_.size(); ++s) {
@@ -87,6 +92,14 @@ void Scene::read(int col, int row, int width, int height, float* out) const {
     std::copy(from, from + plane, out + b * plane);
   }
   if (mask_) apply_mask(col, row, width, height, out);
+}
+
+bool Scene::reads_in_order() const {
+  if (sources_.size() != 1) return false;
+  for (std::size_t b = 0; b < slots_.size(); ++b) {
+    if (slots_[b].plane != b) return false;
+  }
+  return true;
 }
 
 void Scene::apply_mask(int col, int row, int width, int height, float* out) const {

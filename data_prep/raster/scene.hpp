@@ -45,6 +45,7 @@ class Scene {
   std::vector<Slot> slots_;
   std::unique_ptr<AlignedSource> mask_;
   mutable std::vector<float> buffer_;
+  bool reads_in_order() const;
 };
 
 }  // namespace tinct

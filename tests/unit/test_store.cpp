@@ -418,6 +418,51 @@ TEST_CASE("a writer destroyed before finish leaves nothing behind", "[store]") {
   CHECK(fs::is_empty(folder.path()));
 }
 
+TEST_CASE("colour added after its chips lands with them, in chip order", "[store]") {
+  TempFolder folder;
+  const auto shape = layout(tinct::StorageType::uint16);
+  const auto chips = make_chips(shape, 4, 21);
+  {
+    tinct::StoreWriter writer(folder / "store", shape, false);
+    writer.add(chips[0].record, chips[0].bands(), chips[0].colour.data(), chips[0].valid.data());
+    writer.add_awaiting_colour(chips[1].record, chips[1].bands(), chips[1].valid.data());
+    writer.add_awaiting_colour(chips[2].record, chips[2].bands(), chips[2].valid.data());
+    CHECK(writer.chips_awaiting_colour() == 2);
+    CHECK_THAT(error_of([&] { writer.add(chips[3].record, chips[3].bands(), chips[3].colour.data(),
+                                         chips[3].valid.data()); }),
+               Contains("2 earlier chips await their colour"));
+  }
+  tinct::StoreWriter writer(folder / "store", shape, false);
+  writer.add(chips[0].record, chips[0].bands(), chips[0].colour.data(), chips[0].valid.data());
+  writer.add_awaiting_colour(chips[1].record, chips[1].bands(), chips[1].valid.data());
+  writer.add_awaiting_colour(chips[2].record, chips[2].bands(), chips[2].valid.data());
+  CHECK_THAT(error_of([&] { writer.finish(header_fields()); }), Contains("2 chips still await their colour"));
+  tinct::StoreWriter again(folder / "store2", shape, false);
+  again.add(chips[0].record, chips[0].bands(), chips[0].colour.data(), chips[0].valid.data());
+  again.add_awaiting_colour(chips[1].record, chips[1].bands(), chips[1].valid.data());
+  again.add_awaiting_colour(chips[2].record, chips[2].bands(), chips[2].valid.data());
+  again.add_colour(chips[1].colour.data());
+  again.add_colour(chips[2].colour.data());
+  CHECK_THAT(error_of([&] { again.add_colour(chips[3].colour.data()); }), Contains("without a chip awaiting"));
+}
+
+TEST_CASE("a store whose colour came after its chips reads back exactly", "[store]") {
+  TempFolder folder;
+  const auto shape = layout(tinct::StorageType::uint16);
+  const auto chips = make_chips(shape, 3, 22);
+  tinct::StoreWriter writer(folder / "store", shape, false);
+  for (const Chip& chip : chips) writer.add_awaiting_colour(chip.record, chip.bands(), chip.valid.data());
+  for (const Chip& chip : chips) writer.add_colour(chip.colour.data());
+  writer.finish(header_fields());
+  const auto store = tinct::StoreReader::open(folder / "store");
+  REQUIRE(store.chip_count() == 3);
+  for (int i = 0; i < 3; ++i) {
+    CHECK(std::memcmp(store.bands_u16(i), chips[i].u16.data(), 4 * 64 * 2) == 0);
+    CHECK(std::memcmp(store.colour(i), chips[i].colour.data(), 3 * 64) == 0);
+    CHECK(std::memcmp(store.valid(i), chips[i].valid.data(), 64) == 0);
+  }
+}
+
 TEST_CASE("an existing store is not replaced without replace", "[store]") {
   TempFolder folder;
   const auto shape = layout(tinct::StorageType::uint16);
