@@ -152,3 +152,8 @@ add_executable(tinct_geotiff_tool tests/reference/geotiff_tool.cpp)
 target_link_libraries(tinct_geotiff_tool PRIVATE tinct_data)
 tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
   ${CMAKE_SOURCE_DIR}/tests/reference/geotiff_writer_vs_gdal.py $<TARGET_FILE:tinct_geotiff_tool>)
+
+# Reliability: checksums on every artefact, a full disk during checkpoint and model writes.
+tinct_script_test(artefact_checksums ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/artefact_checksums.py)
+tinct_script_test(disk_full_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/disk_full_runs.py)
+set_tests_properties(disk_full_runs PROPERTIES SKIP_RETURN_CODE 77)

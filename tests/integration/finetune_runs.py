@@ -6,6 +6,7 @@ differ only in their init; assess on a store of the run's own test chips reprodu
 the run's test metrics (metrics.json) and predictions; the metrics in metrics.json equal scikit-learn's (Debian python3-sklearn 1.2) on
 predictions.csv; an encoder whose bands differ from the store's is refused."""
 import csv
+import hashlib
 import json
 import os
 import subprocess
@@ -55,6 +56,9 @@ def subset_store(source, target, ids):
         for index, i in enumerate(keep):
             writer.writerow({**chips[i], "index": str(index)})
     manifest["chip_count"] = len(keep)
+    if "checksums" in manifest:  # FORMAT.md: the SHA-256 of each data file
+        manifest["checksums"] = {name: hashlib.sha256(open(os.path.join(target, name), "rb").read()).hexdigest()
+                                 for name in manifest["checksums"]}
     with open(os.path.join(target, "manifest.yaml"), "w") as f:
         yaml.safe_dump(manifest, f, sort_keys=False)
     return len(keep)

@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cctype>
 #include <iostream>
+#include <new>
 #include <string>
 #include <vector>
 
@@ -69,6 +70,16 @@ std::string unknown_command_message(const std::string& word) {
          " The commands are " + list + " (tinct --help describes them)";
 }
 
+const char* const kOutOfMemory =
+    "out of memory: the process could not allocate what it needed; lower train.batch, the chip size or "
+    "--threads, or run where more memory is free (ulimit -v also limits it)";
+
+// LibTorch's allocator reports a failed allocation as a c10::Error with this text.
+bool is_allocation_failure(const std::string& message) {
+  return message.find("can't allocate memory") != std::string::npos ||
+         message.find("not enough memory") != std::string::npos;
+}
+
 int parse_error_exit(const CLI::App& app, const CLI::ParseError& error) {
   const int code = app.exit(error);  // prints help, version or the usage error
   return code == 0 ? 0 : 2;
@@ -84,8 +95,8 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", version_text());
   app.require_subcommand(1);
   tinct::GlobalOptions global;
-  app.add_option("--threads", global.threads, "Compute threads (default: all cores)")
-      ->check(CLI::NonNegativeNumber);
+  app.add_option("--threads", global.threads, "Compute threads, up to 1024 as train.threads (default: all cores)")
+      ->check(CLI::Range(0, 1024));
   app.add_flag("--quiet,-q", global.quiet, "Only warnings and errors on stderr");
 
   std::vector<std::pair<CLI::App*, tinct::CommandRun>> commands;
@@ -116,7 +127,14 @@ int main(int argc, char** argv) {
   } catch (const tinct::Error& error) {
     tinct::log::error(error.what());
     return error.exit_code();
+  } catch (const std::bad_alloc&) {
+    tinct::log::error(kOutOfMemory);
+    return 1;
   } catch (const std::exception& error) {
+    if (is_allocation_failure(error.what())) {
+      tinct::log::error(kOutOfMemory);
+      return 1;
+    }
     tinct::log::error(std::string("unexpected failure: ") + error.what());
     return 1;
   }
