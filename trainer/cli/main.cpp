@@ -2,6 +2,7 @@
 // place where errors become messages and exit codes (0 ok, 1 runtime, 2 usage).
 #include <algorithm>
 #include <cctype>
+#include <filesystem>
 #include <iostream>
 #include <new>
 #include <string>
@@ -127,6 +128,12 @@ int main(int argc, char** argv) {
   } catch (const tinct::Error& error) {
     tinct::log::error(error.what());
     return error.exit_code();
+  } catch (const std::filesystem::filesystem_error& error) {
+    // Raised by a file system call that no stage wrapped: still say which path and why.
+    const std::string second = error.path2().empty() ? "" : " (and " + error.path2().string() + ")";
+    tinct::log::error("cannot access " + error.path1().string() + second + ": " + error.code().message() +
+                      "; check the path, its permissions and the free space");
+    return 1;
   } catch (const std::bad_alloc&) {
     tinct::log::error(kOutOfMemory);
     return 1;
