@@ -157,3 +157,5 @@ tinct_script_test(reference_geotiff_writer_vs_gdal ${DEBIAN_PYTHON}
 tinct_script_test(artefact_checksums ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/artefact_checksums.py)
 tinct_script_test(disk_full_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/disk_full_runs.py)
 set_tests_properties(disk_full_runs PROPERTIES SKIP_RETURN_CODE 77)
+tinct_script_test(bad_input_sweep ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/bad_input_sweep.py)
+tinct_script_test(crash_points ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/crash_points.py)
