@@ -56,7 +56,7 @@ std::array<ValueRange, 3> measured_ranges(const ColourReader& read, const Target
     }
   });
   for (auto& r : ranges) {
-    if (r.min > r.max) fail_runtime("the colour bands hold no valid pixel in this scene");
+    if (r.min > r.max) throw NoValidColour("the colour bands hold no valid pixel");
     if (r.max <= r.min) r.max = r.min + 1;
   }
   return ranges;
@@ -88,7 +88,7 @@ ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& g
       for (int b = 0; b < 3; ++b) histograms[b].add(rgb[b * n + i]);
     }
   });
-  if (histograms[0].count() == 0) fail_runtime("the colour bands hold no valid pixel in this scene");
+  if (histograms[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
   return ColourComposer({make_stretch(histograms[0], settings), make_stretch(histograms[1], settings),
                          make_stretch(histograms[2], settings)});
 }

@@ -170,7 +170,13 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
   const ScenePairer pairer(config, spec);
   const TargetGrid& grid = pairer.scene().grid();
   for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
-  const ColourComposer composer = pairer.fit_colour();
+  const ColourComposer composer = [&] {
+    try {
+      return pairer.fit_colour();
+    } catch (const NoValidColour& e) {
+      throw NoValidColour("scene " + spec.id + ": " + e.what() + " (all nodata, masked or clouded)");
+    }
+  }();
   const ShiftReport shift = measure_colour_shift(pairer.proxy_reader(), pairer.colour_reader(), composer, grid,
                                                  config.coregistration);
   judge_shift(shift, config.coregistration, spec.id);
