@@ -1,5 +1,7 @@
 #include "runs/archive_checksum.hpp"
 
+#include <algorithm>
+#include <cerrno>
 #include <cstring>
 #include <fstream>
 #include <vector>

@@ -2,10 +2,13 @@
 
 #include <yaml-cpp/yaml.h>
 
+#include <cerrno>
 #include <chrono>
+#include <cstdio>
 #include <cstring>
 #include <ctime>
 #include <fstream>
+#include <iterator>
 
 #include "raster/gdal_session.hpp"
 #include "runs/blas_probe.hpp"
