@@ -6,7 +6,6 @@
 #pragma once
 
 #include <cstdint>
-#include <exception>
 #include <filesystem>
 #include <functional>
 #include <string>
