@@ -53,11 +53,7 @@ def store_checksums(work):
         text = open(os.path.join(work, config + ".yaml")).read().replace("small.pairs", "damaged.pairs")
         write_text(work, config + ".yaml", text)
         run = run_tinct(work, "pretrain", config + ".yaml", "--force")
-        if name == "chips.csv" and run.returncode == 1 and "damaged" not in run.stderr:
-            # A flipped byte may break the row syntax first; that message names the file too.
-            clean_failure(run, 1, os.path.join("damaged.pairs", name), f"store {name} flipped")
-        else:
-            clean_failure(run, 1, f"damaged.pairs/{name} is damaged", f"store {name} flipped")
+        clean_failure(run, 1, f"damaged.pairs/{name} is damaged", f"store {name} flipped")
 
 
 def archive_checksum(path, what):
@@ -102,7 +98,7 @@ def archives(work):
     checks.check(metadata.get("data_sha256") == hashlib.sha256(data[8 + header_size:]).hexdigest(),
                  "export: data_sha256 is the SHA-256 of the data section")
 
-    for where in (0.1, 0.5, 0.9):
+    for where in (0.3, 0.8):
         # encoder.pt: finetune from it, and export it.
         shutil.rmtree(os.path.join(work, "runs", "bad-pre"), ignore_errors=True)
         os.makedirs(os.path.join(work, "runs", "bad-pre"))

@@ -54,7 +54,7 @@ output: sites.labels
 inputs: [nir, swir]
 scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-05}]
 labels: {source: sites.csv, class: cover, x: x, y: y, crs: EPSG:32632, id: site, classes: [dry, wet]}
-chips: {size: 16, min_valid: 0.9}
+chips: {size: 32, min_valid: 0.9}
 """
 
 
