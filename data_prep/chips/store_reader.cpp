@@ -60,7 +60,6 @@ StoreReader StoreReader::open(const fs::path& store) {
   }
   reader.valid_ = reader.map_checked("valid.bin", chip_valid_bytes(reader.layout_), plane + " x 1 byte");
   reader.chips_csv_ = reader.map_checked("chips.csv", 0, "");
-  verify_store_checksums(store, reader.manifest_);  // before any row is parsed
   const std::string_view text(reinterpret_cast<const char*>(reader.chips_csv_.data()),
                               reader.chips_csv_.size());
   const fs::path csv = store / "chips.csv";
@@ -71,6 +70,8 @@ StoreReader StoreReader::open(const fs::path& store) {
                  " but the manifest's chip_count is " + std::to_string(reader.chip_count()) +
                  reader.rebuild_hint());
   }
+  // After the size and row checks, whose messages say more about a cut or edited store.
+  verify_store_checksums(store, reader.manifest_);
   return reader;
 }
 

@@ -169,6 +169,10 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
                         StoreBuilder& store) {
   const ScenePairer pairer(config, spec);
   const TargetGrid& grid = pairer.scene().grid();
+  if (grid.width < config.chips.size || grid.height < config.chips.size) {
+    log::warning("scene " + spec.id + ": " + std::to_string(grid.width) + " x " + std::to_string(grid.height) +
+                 " px, smaller than one chip (chips.size " + std::to_string(config.chips.size) + "): no chip from it");
+  }
   for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
   const ColourComposer composer = [&] {
     try {

@@ -121,7 +121,7 @@ def cases():
                {"c.yaml": replaced(p, "small.pairs", "broken.pairs")}, prepare_damaged_store("truncated"))
     yield case("pretrain manifest garbage", ["pretrain", "c.yaml"], 1, "broken.pairs/manifest.yaml",
                {"c.yaml": replaced(p, "small.pairs", "broken.pairs")}, prepare_damaged_store("manifest"))
-    yield case("pretrain manifest missing", ["pretrain", "c.yaml"], 1, "manifest.yaml is missing",
+    yield case("pretrain manifest missing", ["pretrain", "c.yaml"], 2, "no chip store at",
                {"c.yaml": replaced(p, "small.pairs", "broken.pairs")}, prepare_damaged_store("no manifest"))
     yield case("pretrain chips.csv cut", ["pretrain", "c.yaml"], 1, "broken.pairs/chips.csv",
                {"c.yaml": replaced(p, "small.pairs", "broken.pairs")}, prepare_damaged_store("chips.csv"))
@@ -148,33 +148,33 @@ def cases():
                "no/such/dir/x.safetensors")
     yield case("survey missing raster", ["survey", "absent.tif"], 2, "absent.tif")
     yield case("survey a text file", ["survey", "fake.tif"], 1, "fake.tif", None, prepare_text_raster)
-    yield case("survey a folder", ["survey", "runs"], 2, "runs")
-    yield case("pair scene missing", ["pair", "c.yaml"], 2, "absent.tif",
+    yield case("survey a folder", ["survey", "runs"], 1, "runs: not a readable raster")
+    yield case("pair scene missing", ["pair", "c.yaml", "--out", "new.pairs"], 2, "absent.tif",
                {"c.yaml": replaced(pair, "path: scene.tif", "path: absent.tif")})
-    yield case("pair scene not a raster", ["pair", "c.yaml"], 2, "fake.tif",
+    yield case("pair scene not a raster", ["pair", "c.yaml", "--out", "new.pairs"], 1, "fake.tif: not a readable raster",
                {"c.yaml": replaced(pair, "path: scene.tif", "path: fake.tif")}, prepare_text_raster)
-    yield case("pair scene of 10 px", ["pair", "c.yaml"], 1, "tiny.tif",
+    yield case("pair scene of 10 px", ["pair", "c.yaml", "--out", "new.pairs"], 1, "scene tiny: 10 x 10 px",
                {"c.yaml": replaced(pair, "path: scene.tif", "path: tiny.tif")}, prepare_small_scene)
-    yield case("pair scene all nodata", ["pair", "c.yaml"], 1, "clouded",
+    yield case("pair scene all nodata", ["pair", "c.yaml", "--out", "new.pairs"], 1, "clouded",
                {"c.yaml": replaced(pair, "path: scene.tif", "path: clouded.tif")}, prepare_clouded_scene)
-    yield case("pair chip size zero", ["pair", "c.yaml"], 2, "chips.size",
+    yield case("pair chip size zero", ["pair", "c.yaml", "--out", "new.pairs"], 2, "chips.size",
                {"c.yaml": replaced(pair, "size: 32", "size: 0")})
-    yield case("pair input band unknown", ["pair", "c.yaml"], 2, "nir2",
+    yield case("pair input band unknown", ["pair", "c.yaml", "--out", "new.pairs"], 2, "nir2",
                {"c.yaml": replaced(pair, "inputs: [nir, swir]", "inputs: [nir2, swir]")})
     yield case("pair output exists", ["pair", "pair.yaml"], 2, "small.pairs already exists")
-    yield case("label source missing", ["label", "c.yaml"], 2, "absent.csv",
+    yield case("label source missing", ["label", "c.yaml", "--out", "new.labels"], 2, "absent.csv",
                {"c.yaml": replaced(label, "source: sites.csv", "source: absent.csv")})
-    yield case("label column missing", ["label", "c.yaml"], 2, "cover",
+    yield case("label column missing", ["label", "c.yaml", "--out", "new.labels"], 2, "cover",
                {"c.yaml": replaced(label, "source: sites.csv", "source: cols.csv"), "cols.csv": "site,x,y\ns1,500100,5299900\n"})
-    yield case("label x not a number", ["label", "c.yaml"], 2, "line 2",
+    yield case("label x not a number", ["label", "c.yaml", "--out", "new.labels"], 1, "nan.csv line 2",
                {"c.yaml": replaced(label, "source: sites.csv", "source: nan.csv"),
                 "nan.csv": "site,x,y,cover\ns1,east,5299900,wet\n"})
-    yield case("label crs unknown", ["label", "c.yaml"], 2, "EPSG:999999",
+    yield case("label crs unknown", ["label", "c.yaml", "--out", "new.labels"], 2, "EPSG:999999",
                {"c.yaml": replaced(label, "crs: EPSG:32632", "crs: EPSG:999999")})
-    yield case("label no label in the scene", ["label", "c.yaml"], 1, "",
+    yield case("label no label in the scene", ["label", "c.yaml", "--out", "new.labels"], 1, "",
                {"c.yaml": replaced(label, "source: sites.csv", "source: far.csv"),
                 "far.csv": "site,x,y,cover\ns1,100000,100000,wet\ns2,100010,100000,dry\n"})
-    yield case("label GeoJSON broken", ["label", "c.yaml"], 2, "broken.geojson",
+    yield case("label GeoJSON broken", ["label", "c.yaml", "--out", "new.labels"], 1, "broken.geojson",
                {"c.yaml": replaced(replaced(label, "source: sites.csv", "source: broken.geojson"), "x: x, y: y, ", ""),
                 "broken.geojson": '{"type": "FeatureCollection", "features": [ {"type": '})
     yield case("label output exists", ["label", "label.yaml"], 2, "sites.labels already exists")
@@ -221,7 +221,7 @@ with tempfile.TemporaryDirectory() as work:
         if item["code"] == 2:
             blocking = sorted(n for n in new if n.startswith("runs/") and n.endswith("run.yaml"))
             checks.check(not blocking, f"{what}: a usage error leaves no run folder behind: {blocking}")
-        for gone in ("runs/sweep", "runs/sweep-fine", "broken.pairs"):
+        for gone in ("runs/sweep", "runs/sweep-fine", "broken.pairs", "new.pairs", "new.labels"):
             shutil.rmtree(os.path.join(work, gone), ignore_errors=True)
     checks.check(count >= 40, f"at least 40 malformed inputs ({count})")
     print(f"{count} malformed inputs")
