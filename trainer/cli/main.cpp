@@ -1,7 +1,11 @@
 // tinct's entry point: global options, the table of subcommands, and the one
 // place where errors become messages and exit codes (0 ok, 1 runtime, 2 usage).
+#include <sys/resource.h>
+
 #include <algorithm>
 #include <cctype>
+#include <cstdint>
+#include <cstdlib>
 #include <filesystem>
 #include <iostream>
 #include <new>
@@ -17,6 +21,19 @@
 #include "util/version_info.hpp"
 
 namespace {
+
+// OpenBLAS starts its thread pool while the libraries load, before main, and each pool
+// thread reserves a buffer of about 128 MiB; under an address-space limit (ulimit -v) a
+// failed reservation is retried for ever. A .preinit_array function runs before any
+// library's initialiser, so it can ask OpenBLAS for no pool when the limit is tight.
+void no_blas_pool_under_tight_limit(int, char**, char**) {
+  rlimit limit{};
+  if (::getrlimit(RLIMIT_AS, &limit) != 0 || limit.rlim_cur == RLIM_INFINITY) return;
+  if (limit.rlim_cur > (std::uint64_t{8} << 30)) return;
+  ::setenv("OPENBLAS_NUM_THREADS", "1", /*overwrite=*/0);
+}
+__attribute__((section(".preinit_array"), used)) void (*const kBeforeLibraries)(int, char**, char**) =
+    &no_blas_pool_under_tight_limit;
 
 const tinct::CommandEntry kCommands[] = {
     {"survey", "Describe rasters: grid, CRS and exact per-band statistics", tinct::setup_survey},
