@@ -50,11 +50,12 @@ checkpoints: {{every: 4, keep: 2}}
     return path
 
 
-def preview_size(chips, size, gap=2, min_tile=96):
-    """Width and height of a preview PNG as colour_preview.cpp lays it out: one row per chip
-    (truth | prediction) with `gap` pixels around tiles, enlarged to tiles of >= min_tile px."""
-    scale = max(1, min_tile // size)
-    return (2 * size + 3 * gap) * scale, (chips * (size + gap) + gap) * scale
+def preview_layout(chips, size, gap=4, min_tile=192, header=52):
+    """Least width and exact height of a preview PNG as colour_preview.cpp lays it out: a header
+    (caption and column labels), then one row per chip (truth | prediction), chips enlarged to
+    tiles of >= min_tile px. The width grows with the caption's text, so only its floor is fixed."""
+    tile = size * max(1, -(-min_tile // size))
+    return 2 * tile + 3 * gap, header + chips * (tile + gap)
 
 
 with tempfile.TemporaryDirectory() as work:
@@ -94,7 +95,8 @@ scenes: [{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-0
         png = gdal.Open(os.path.join(folder, "previews", name))
         size = (png.RasterXSize, png.RasterYSize, png.RasterCount) if png else None
         checks.check(png is not None and png.GetDriver().ShortName == "PNG" and
-                     size == (*preview_size(4, 32), 3), f"{name} decodes as a 3-band PNG of the layout's size: {size}")
+                     size[0] >= preview_layout(4, 32)[0] and size[1:] == (preview_layout(4, 32)[1], 3),
+                     f"{name} decodes as a 3-band PNG of the layout's size: {size}")
     with open(os.path.join(folder, "metrics.csv")) as f:
         rows = list(csv.DictReader(f))
     checks.check([int(r["step"]) for r in rows] == list(range(1, 13)), "a metrics row per step")

@@ -6,8 +6,10 @@
 // To re-record after a change that is meant to alter the losses: run
 //   build/tinct_training_tests "[parity]"
 // copy the "actual" values the failures print into the arrays below, and say in the
-// commit message why they changed. The tolerance (relative 1e-5) absorbs last-bit
-// differences between BLAS kernels on other CPUs; a real change moves losses far more.
+// commit message why they changed. The tolerance (relative 1e-3) absorbs the rounding
+// differences between CPUs' vector kernels, which grow with the steps (measured between two
+// machines: 2e-5 relative after 3 finetune epochs, 1.5e-4 after 5 pretrain steps); a real
+// change (another random draw, schedule or step order) moves losses by percents.
 #include <torch/torch.h>
 #undef CHECK
 #include <catch2/catch.hpp>
@@ -110,7 +112,7 @@ void check_losses(const std::vector<double>& actual, const std::vector<double>& 
   REQUIRE(actual.size() >= pinned.size());
   for (std::size_t i = 0; i < pinned.size(); ++i) {
     INFO("loss " << i + 1 << ": actual " << tinct::metric_text(actual[i]) << ", pinned " << pinned[i]);
-    CHECK(actual[i] == Approx(pinned[i]).epsilon(1e-5));
+    CHECK(actual[i] == Approx(pinned[i]).epsilon(1e-3));
   }
 }
 
