@@ -1,11 +1,13 @@
 // tinct's entry point: global options, the table of subcommands, and the one
 // place where errors become messages and exit codes (0 ok, 1 runtime, 2 usage).
 #include <sys/resource.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cctype>
 #include <cstdint>
 #include <cstdlib>
+#include <exception>
 #include <filesystem>
 #include <iostream>
 #include <new>
@@ -26,7 +28,30 @@ namespace {
 // thread reserves a buffer of about 128 MiB; under an address-space limit (ulimit -v) a
 // failed reservation is retried for ever. A .preinit_array function runs before any
 // library's initialiser, so it can ask OpenBLAS for no pool when the limit is tight.
+// LibTorch's own initialisers allocate while the libraries load, before main's try block;
+// an allocation failure there would end in a bare "terminate called". Installed before
+// any library starts, this says "out of memory" and exits 1 instead.
+[[noreturn]] void on_terminate() {
+  if (const std::exception_ptr current = std::current_exception()) {
+    try {
+      std::rethrow_exception(current);
+    } catch (const std::bad_alloc&) {
+      static const char kText[] =
+          "error: out of memory while loading tinct's libraries; run where more memory is free "
+          "(ulimit -v also limits it)\n";
+      [[maybe_unused]] const auto written = ::write(2, kText, sizeof(kText) - 1);
+      std::_Exit(1);
+    } catch (const std::exception& error) {
+      const std::string text = std::string("error: unexpected failure: ") + error.what() + "\n";
+      [[maybe_unused]] const auto written = ::write(2, text.data(), text.size());
+    } catch (...) {
+    }
+  }
+  std::abort();
+}
+
 void no_blas_pool_under_tight_limit(int, char**, char**) {
+  std::set_terminate(on_terminate);
   rlimit limit{};
   if (::getrlimit(RLIMIT_AS, &limit) != 0 || limit.rlim_cur == RLIM_INFINITY) return;
   if (limit.rlim_cur > (std::uint64_t{8} << 30)) return;
