@@ -54,7 +54,7 @@ def store_checksums(work):
         write_text(work, config + ".yaml", text)
         run = run_tinct(work, "pretrain", config + ".yaml", "--force")
         # A flipped byte in chips.csv may break a row first: that message names the line.
-        said = "chips.csv line" if name == "chips.csv" and "is damaged:" not in run.stderr else "is damaged"
+        said = "line" if name == "chips.csv" and "is damaged:" not in run.stderr else "is damaged"
         clean_failure(run, 1, f"damaged.pairs/{name} {said}", f"store {name} flipped")
 
 

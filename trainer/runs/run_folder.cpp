@@ -139,7 +139,7 @@ void RunFolder::remove_leftover_attempt() const {
   const fs::path partial = partial_folder_of(target_);
   if (fs::exists(partial)) {
     fs::remove_all(partial, ec);
-    log::info("removed " + partial.string() + ", left by an interrupted --force");
+    log::info("removed " + partial.string() + ", left by an earlier --force that did not finish");
   }
   for (const fs::path& folder : {path_, path_ / "checkpoints"}) {
     if (!fs::is_directory(folder)) continue;
