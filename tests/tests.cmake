@@ -174,3 +174,10 @@ set_tests_properties(reference_map_l7_cog PROPERTIES FIXTURES_REQUIRED debian_da
 tinct_script_test(reference_heads_l7_vs_sklearn
   ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/reference/heads_l7_vs_sklearn.py)
 set_tests_properties(reference_heads_l7_vs_sklearn PROPERTIES FIXTURES_REQUIRED debian_data)
+# Reliability: checksums on every artefact, a full disk during checkpoint and model writes.
+tinct_script_test(artefact_checksums ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/artefact_checksums.py)
+tinct_script_test(disk_full_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/disk_full_runs.py)
+set_tests_properties(disk_full_runs PROPERTIES SKIP_RETURN_CODE 77)
+tinct_script_test(bad_input_sweep ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/bad_input_sweep.py)
+tinct_script_test(crash_points ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/crash_points.py)
+tinct_script_test(memory_limits ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/memory_limits.py)

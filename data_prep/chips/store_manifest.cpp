@@ -126,6 +126,20 @@ std::vector<StoreScene> read_scenes(const ConfigNode& root) {
   return scenes;
 }
 
+std::map<std::string, std::string> read_checksums(const ConfigNode& root) {
+  std::map<std::string, std::string> checksums;
+  if (!root.has("checksums")) return checksums;
+  const ConfigNode section = root.section("checksums");
+  for (const auto& name : section.keys()) {
+    const std::string digest = section.text(name);
+    if (digest.size() != 64 || digest.find_first_not_of("0123456789abcdef") != std::string::npos) {
+      section.fail(name, "must be a SHA-256 in 64 lowercase hex digits");
+    }
+    checksums[name] = digest;
+  }
+  return checksums;
+}
+
 void check_version(const ConfigNode& root, const fs::path& file, StoreManifest& manifest) {
   const std::int64_t version = root.integer("format_version", std::nullopt, 1);
   if (version > kStoreFormatVersion) {
@@ -153,6 +167,7 @@ StoreManifest parse_manifest(const ConfigNode& root, const fs::path& file) {
   manifest.scenes = read_scenes(root);
   manifest.config_hash = root.text("config_hash");
   manifest.tinct_version = root.text("tinct_version");
+  manifest.checksums = read_checksums(root);
   check_layout(layout_of(manifest), file.string());
   return manifest;
 }
@@ -237,6 +252,11 @@ std::string manifest_yaml(const StoreManifest& manifest) {
   emit_scenes(out, manifest.scenes);
   emit_text(out, "config_hash", manifest.config_hash);
   emit_text(out, "tinct_version", manifest.tinct_version);
+  if (!manifest.checksums.empty()) {
+    out << YAML::Key << "checksums" << YAML::Value << YAML::BeginMap;
+    for (const auto& [name, digest] : manifest.checksums) emit_text(out, name, digest);
+    out << YAML::EndMap;
+  }
   out << YAML::EndMap;
   return std::string(out.c_str()) + "\n";
 }

@@ -56,6 +56,9 @@ struct StoreManifest {
   std::vector<StoreScene> scenes;
   std::string config_hash;
   std::string tinct_version;
+  // SHA-256 (hex) of bands.bin, colour.bin, valid.bin and chips.csv, checked when the
+  // store is opened; empty in stores written before checksums were.
+  std::map<std::string, std::string> checksums;
 };
 
 // The shape of the .bin files, which is all a writer needs before the first chip.

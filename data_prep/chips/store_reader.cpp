@@ -3,6 +3,7 @@
 #include <limits>
 #include <string_view>
 
+#include "chips/store_checksums.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
 
@@ -69,6 +70,8 @@ StoreReader StoreReader::open(const fs::path& store) {
                  " but the manifest's chip_count is " + std::to_string(reader.chip_count()) +
                  reader.rebuild_hint());
   }
+  // After the size and row checks, whose messages say more about a cut or edited store.
+  verify_store_checksums(store, reader.manifest_);
   return reader;
 }
 

@@ -7,6 +7,7 @@
 
 #include "chips/band_statistics.hpp"
 #include "chips/mapped_file.hpp"
+#include "chips/store_checksums.hpp"
 #include "util/error.hpp"
 #include "util/version_info.hpp"
 
@@ -143,6 +144,7 @@ void StoreWriter::finish(StoreManifest header_fields) {
     if (file != nullptr) file->close();
   }
   manifest.statistics = statistics_of_written();
+  manifest.checksums = store_checksums(folder_.path());
   if (manifest.statistics.front().count == 0) {
     fail_runtime("store " + target().string() + ": no chip has a valid pixel; check nodata and masks");
   }

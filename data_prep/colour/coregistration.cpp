@@ -24,7 +24,7 @@ namespace tinct {
 
 namespace {
 
-constexpr int kMinWindow = 16;
+constexpr int kMinWindow = kMinShiftWindow;
 constexpr double kHoleTaper = 8.0;  // pixels
 constexpr double kPi = 3.14159265358979323846;
 constexpr int kUpsample = 100;      // the refined peak lies on a 1/100 px grid

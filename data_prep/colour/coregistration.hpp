@@ -24,6 +24,9 @@ constexpr double kMinValidFraction = 0.5;
 // median over all windows are ignored: flat water, cloud or saturation.
 constexpr double kMinTextureFraction = 0.1;
 
+// The smallest window the estimator takes (a scene smaller than this is not measured).
+inline constexpr int kMinShiftWindow = 16;
+
 // reference and moving: CV_32FC1, same size, NaN for invalid pixels (replaced by the
 // window's mean before correlating). Up to max_windows windows of window_size pixels
 // spread evenly; an image smaller than a window gets one window of the largest power of

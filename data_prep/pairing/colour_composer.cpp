@@ -56,7 +56,7 @@ std::array<ValueRange, 3> measured_ranges(const ColourReader& read, const Target
     }
   });
   for (auto& r : ranges) {
-    if (r.min > r.max) fail_runtime("the colour bands hold no valid pixel in this scene");
+    if (r.min > r.max) throw NoValidColour("the colour bands hold no valid pixel");
     if (r.max <= r.min) r.max = r.min + 1;
   }
   return ranges;
@@ -89,7 +89,7 @@ void StretchFit::add(const float* red, const float* green, const float* blue, st
 }
 
 ColourComposer StretchFit::composer(const StretchSettings& settings) const {
-  if (histograms_[0].count() == 0) fail_runtime("the colour bands hold no valid pixel in this scene");
+  if (histograms_[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
   return ColourComposer({make_stretch(histograms_[0], settings), make_stretch(histograms_[1], settings),
                          make_stretch(histograms_[2], settings)});
 }

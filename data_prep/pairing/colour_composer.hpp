@@ -13,11 +13,19 @@
 
 #include "colour/stretch.hpp"
 #include "raster/target_grid.hpp"
+#include "util/error.hpp"
 
 namespace tinct {
 
 // Reads red, green, blue (stored values, NaN invalid) over a window: 3 planes of w*h.
 using ColourReader = std::function<void(int col, int row, int width, int height, float* out)>;
+
+// A scene whose colour bands hold no valid pixel (all nodata, masked or clouded):
+// tinct pair skips such a scene while others remain.
+class NoValidColour : public Error {
+ public:
+  explicit NoValidColour(const std::string& message) : Error(ErrorKind::runtime, message) {}
+};
 
 class ColourComposer;
 

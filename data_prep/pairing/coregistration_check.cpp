@@ -35,6 +35,7 @@ ShiftReport measure_colour_shift(const PlaneReader& proxy, const ColourReader& c
                                  const ColourComposer& composer, const TargetGrid& grid,
                                  const CoregistrationSettings& settings) {
   const int window = std::min({settings.window, grid.width, grid.height});
+  if (window < kMinShiftWindow) return {};  // too small to measure: judge_shift says so
   const int per_axis = std::max(1, static_cast<int>(std::lround(std::sqrt(double(settings.windows)))));
   const std::size_t n = static_cast<std::size_t>(window) * window;
   std::vector<float> rgb(3 * n), plane(n), lightness(n);

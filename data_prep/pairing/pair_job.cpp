@@ -3,6 +3,7 @@
 #include <cstdio>
 
 #include "chips/store_builder.hpp"
+#include "pairing/colour_composer.hpp"
 #include "pairing/scene_pairer.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
@@ -52,9 +53,18 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
 
   PairSummary summary;
   std::vector<StoreScene> described;
+  int skipped = 0;
   for (const SceneSpec* spec : scenes) {
     const auto scene_number = static_cast<std::uint64_t>(spec - config.scenes.data());
-    const ScenePairing pairing = pair_scene(config, *spec, scene_number, store);
+    ScenePairing pairing;
+    try {
+      pairing = pair_scene(config, *spec, scene_number, store);
+    } catch (const NoValidColour& e) {
+      if (scenes.size() == 1) fail_runtime(std::string(e.what()) + "; it is the only scene: nothing to pair");
+      log::warning(std::string(e.what()) + "; skipped");
+      ++skipped;
+      continue;
+    }
     log::info("scene " + spec->id + ": " + std::to_string(pairing.tally.written) + " chips kept of " +
               std::to_string(pairing.tally.planned) + " planned (" +
               std::to_string(pairing.tally.below_min_valid) + " below min_valid)");
@@ -64,6 +74,9 @@ PairSummary run_pair_job(const PairConfig& config, const PairJobOptions& options
     summary.below_min_valid += pairing.tally.below_min_valid;
     summary.written += pairing.tally.written;
   }
+  if (skipped > 0) log::warning("pair: skipped " + std::to_string(skipped) + " of " + std::to_string(scenes.size()) +
+                                " scenes whose colour bands hold no valid pixel");
+  if (skipped == static_cast<int>(scenes.size())) fail_runtime("pair: no scene has a valid colour pixel; nothing to pair");
   if (summary.written == 0) fail_no_chips(summary, config);
 
   store.finish(std::move(described));

@@ -354,14 +354,22 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
   const ScenePairer pairer(config, spec);
   for (const auto& note : pairer.scene().alignment_notes()) log::info("scene " + spec.id + ": aligning " + note);
   const TargetGrid& grid = pairer.scene().grid();
+  if (grid.width < config.chips.size || grid.height < config.chips.size) {
+    log::warning("scene " + spec.id + ": " + std::to_string(grid.width) + " x " + std::to_string(grid.height) +
+                 " px, smaller than one chip (chips.size " + std::to_string(config.chips.size) + "): no chip from it");
+  }
   const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
   ScenePairing result;
   result.tally.planned = static_cast<std::int64_t>(windows.size());
   std::optional<StretchFit> fit = pairer.one_pass_fit(windows);
-  if (fit && config.chips.max_per_scene == 0) {
-    pair_in_one_pass(config, spec, pairer, windows, std::move(*fit), store, result);
-  } else {
-    pair_by_windows(config, spec, pairer, windows, store, result);
+  try {
+    if (fit && config.chips.max_per_scene == 0) {
+      pair_in_one_pass(config, spec, pairer, windows, std::move(*fit), store, result);
+    } else {
+      pair_by_windows(config, spec, pairer, windows, store, result);
+    }
+  } catch (const NoValidColour& e) {
+    throw NoValidColour("scene " + spec.id + ": " + e.what() + " (all nodata, masked or clouded)");
   }
   return result;
 }

@@ -4,7 +4,9 @@
 #include <cpl_error.h>
 #include <gdal.h>
 
+#include <cstdlib>
 #include <mutex>
+#include <string>
 
 #include "util/log.hpp"
 
@@ -16,6 +18,16 @@ constexpr GIntBig kBlockCacheBytes = 64LL * 1024 * 1024;
 void route_to_log(CPLErr level, CPLErrorNum, const char* message) {
   // Failures are re-raised as tinct errors with context by the caller; only
   // warnings are worth showing on their own.
+  if (level == CE_Fatal) {
+    // GDAL aborts the process after a fatal error (its failed allocations are fatal):
+    // say what happened in tinct's words and end with exit 1 instead of an abort.
+    const std::string text = message ? message : "";
+    log::error(text.find("Out of memory") != std::string::npos
+                   ? "out of memory: GDAL could not allocate what it needed (" + text +
+                         "); run where more memory is free (ulimit -v also limits it)"
+                   : "GDAL failed fatally: " + text);
+    std::_Exit(1);
+  }
   if (level == CE_Warning) {
     log::warning(std::string("GDAL: ") + message);
   } else if (level == CE_Debug) {
@@ -28,8 +40,8 @@ void route_to_log(CPLErr level, CPLErrorNum, const char* message) {
 void ensure_gdal() {
   static std::once_flag once;
   std::call_once(once, [] {
+    CPLSetErrorHandler(route_to_log);  // first: registering drivers allocates too
     GDALAllRegister();
-    CPLSetErrorHandler(route_to_log);
     // GDAL's default block cache is 5 % of RAM; tinct reads each tile about once
     // in row order, so a small cache keeps memory bounded whatever the scene size.
     if (!CPLGetConfigOption("GDAL_CACHEMAX", nullptr)) GDALSetCacheMax64(kBlockCacheBytes);

@@ -69,6 +69,9 @@ ConfigNode ConfigNode::load(const fs::path& file) {
   if (!fs::exists(file)) {
     fail_usage(file.string() + ": config file not found; check the path");
   }
+  if (fs::is_directory(file)) {
+    fail_usage(file.string() + " is a folder, not a config file; give the YAML file (tinct check FILE validates one)");
+  }
   YAML::Node root;
   try {
     root = YAML::LoadFile(file.string());

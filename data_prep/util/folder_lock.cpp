@@ -90,6 +90,11 @@ FolderLock::FolderLock(fs::path folder, fs::path lock_file, const std::string& h
 
 FolderLock::~FolderLock() { release(); }
 
+void FolderLock::moved(fs::path folder, fs::path lock_file) {
+  folder_ = std::move(folder);
+  lock_file_ = std::move(lock_file);
+}
+
 void FolderLock::release() {
   if (fd_ < 0) return;
   std::error_code ec;

@@ -25,6 +25,9 @@ class FolderLock {
 
   // Removes the lock file, then drops the lock; safe to call twice.
   void release();
+  // The holder renamed the folder (and the lock file with it): later messages and
+  // release() use the new names. The lock itself is unchanged (flock follows the file).
+  void moved(std::filesystem::path folder, std::filesystem::path lock_file);
 
   const std::filesystem::path& lock_file() const { return lock_file_; }
   // The pid a stale lock file named when it was taken over, else 0.

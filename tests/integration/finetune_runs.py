@@ -9,6 +9,7 @@ lon, lat equal GDAL osr's transform of x, y; the metrics in metrics.json equal s
 (Debian python3-sklearn 1.2) on predictions.csv; the label store holds label's log.txt with its per-class
 counts; an encoder whose bands differ from the store's is refused."""
 import csv
+import hashlib
 import json
 import os
 import subprocess
@@ -60,6 +61,9 @@ def subset_store(source, target, ids):
         for index, i in enumerate(keep):
             writer.writerow({**chips[i], "index": str(index)})
     manifest["chip_count"] = len(keep)
+    if "checksums" in manifest:  # FORMAT.md: the SHA-256 of each data file
+        manifest["checksums"] = {name: hashlib.sha256(open(os.path.join(target, name), "rb").read()).hexdigest()
+                                 for name in manifest["checksums"]}
     with open(os.path.join(target, "manifest.yaml"), "w") as f:
         yaml.safe_dump(manifest, f, sort_keys=False)
     return len(keep)

@@ -50,8 +50,68 @@ TEST_CASE("a finished run is not overwritten without force, and force starts ove
     CHECK_THAT(e.what(), Contains("--force"));
     CHECK(e.exit_code() == 2);
   }
-  RunFolder forced(path, {/*force=*/true, /*resume=*/false});
-  CHECK_FALSE(std::filesystem::exists(path / "run.yaml"));
+  {
+    RunFolder forced(path, {/*force=*/true, /*resume=*/false});
+    // The new run is built beside the old one, which stays whole until the new one ends.
+    CHECK(forced.path() == folder / "run.partial");
+    CHECK_FALSE(std::filesystem::exists(forced.path() / "run.yaml"));
+    CHECK(std::filesystem::exists(path / "run.yaml"));
+    forced.write_status(RunStatus::stopped, 2);
+    forced.finish_replacement();
+    CHECK(forced.path() == path);
+    CHECK(std::filesystem::exists(path / "lock"));
+  }
+  CHECK(YAML::LoadFile((path / "run.yaml").string())["seed"].as<int>() == 2);
+  CHECK_FALSE(std::filesystem::exists(folder / "run.partial"));
+  CHECK_FALSE(std::filesystem::exists(folder / "run.previous"));
+  CHECK_FALSE(std::filesystem::exists(path / "lock"));
+}
+
+TEST_CASE("a replacement killed between its renames is put back, and a killed attempt is cleared") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  { RunFolder(path, {}).write_status(RunStatus::done, 1); }
+  // A kill after the old run moved aside and before the new one moved in.
+  std::filesystem::rename(path, folder / "run.previous");
+  std::filesystem::create_directories(folder / "run.partial" / "checkpoints");
+  {
+    RunFolder resumed(path, {/*force=*/false, /*resume=*/true});
+    CHECK(YAML::LoadFile((path / "run.yaml").string())["seed"].as<int>() == 1);
+    CHECK_FALSE(std::filesystem::exists(folder / "run.previous"));
+    CHECK_FALSE(std::filesystem::exists(folder / "run.partial"));
+  }
+  // A kill after both renames: the new run is in place and the old one goes.
+  std::filesystem::create_directories(folder / "run.previous" / "checkpoints");
+  { RunFolder reopened(path, {/*force=*/false, /*resume=*/true}); }
+  CHECK_FALSE(std::filesystem::exists(folder / "run.previous"));
+  CHECK(std::filesystem::exists(path / "run.yaml"));
+}
+
+TEST_CASE("temporaries left by a killed write are removed when the run is opened") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  { RunFolder(path, {}).write_status(RunStatus::running, 1); }
+  std::filesystem::create_directories(path / "checkpoints");
+  const auto orphan = path / "checkpoints" / ".step-00000004.pt.tmp.12345";
+  folder.write("run/checkpoints/.step-00000004.pt.tmp.12345", "half a checkpoint");
+  folder.write("run/checkpoints/step-00000002.pt", "kept");
+  { RunFolder resumed(path, {/*force=*/false, /*resume=*/true}); }
+  CHECK_FALSE(std::filesystem::exists(orphan));
+  CHECK(std::filesystem::exists(path / "checkpoints" / "step-00000002.pt"));
+  CHECK_THAT(tinct::testing::read_text(path / "log.txt"), Contains("a temporary file left by an interrupted write"));
+}
+
+TEST_CASE("a run killed before its first checkpoint is not sent to --resume") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  { RunFolder(path, {}).write_status(RunStatus::running, 1); }
+  try {
+    RunFolder again(path, {});
+    FAIL("expected a refusal");
+  } catch (const tinct::Error& e) {
+    CHECK_THAT(e.what(), Contains("no checkpoint to continue from") && Contains("--force"));
+    CHECK_THAT(e.what(), !Contains("--resume"));
+  }
 }
 
 TEST_CASE("a second process cannot open a run that is held") {

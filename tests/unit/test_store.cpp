@@ -323,6 +323,22 @@ TEST_CASE("a truncated bands.bin is reported with the sizes and a fix", "[store]
                       "need 1536; the store is truncated or was edited: rebuild it with tinct pair"));
 }
 
+TEST_CASE("a flipped byte in any data file fails naming it, against the manifest's SHA-256", "[store]") {
+  TempFolder folder;
+  const auto shape = layout(tinct::StorageType::uint16);
+  for (const char* name : {"bands.bin", "colour.bin", "valid.bin"}) {
+    const auto store = write_store(folder / name, shape, make_chips(shape, 3, 9));
+    CHECK_NOTHROW(tinct::StoreReader::open(store));
+    std::string bytes = tinct::testing::read_text(store / name);
+    bytes[bytes.size() / 2] = static_cast<char>(bytes[bytes.size() / 2] ^ 0x01);
+    folder.write(std::string(name) + "/" + name, bytes);
+    const std::string message = error_of([&] { tinct::StoreReader::open(store); });
+    INFO(message);
+    CHECK_THAT(message, Contains((store / name).string() + " is damaged: its SHA-256 is"));
+    CHECK_THAT(message, Contains("recorded in manifest.yaml"));
+  }
+}
+
 TEST_CASE("an edited chip_count or chips.csv disagrees with the files", "[store]") {
   TempFolder folder;
   const auto shape = layout(tinct::StorageType::uint16);

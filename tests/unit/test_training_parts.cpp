@@ -14,6 +14,7 @@
 #include <yaml-cpp/yaml.h>
 
 #include <cmath>
+#include <fstream>
 #include <string>
 #include <vector>
 
@@ -297,7 +298,7 @@ TEST_CASE("a save that fails (file size limit, as on a full disk) leaves no temp
     } catch (const tinct::Error& e) {
       const std::string message = e.what();
       const bool named = message.find("cannot write " + target.string()) != std::string::npos &&
-                         message.find("MB free on the file system of") != std::string::npos;
+                         message.find(" free on the file system of") != std::string::npos;
       ::_exit(named && e.exit_code() == 1 ? 3 : 4);
     }
     ::_exit(5);
@@ -306,6 +307,49 @@ TEST_CASE("a save that fails (file size limit, as on a full disk) leaves no temp
   CHECK(WEXITSTATUS(status) == 3);
   CHECK_FALSE(std::filesystem::exists(target));
   CHECK(std::filesystem::is_empty(target.parent_path()));  // the temporary is gone too
+}
+
+TEST_CASE("an archive carries its SHA-256: flipped bytes anywhere or a cut end fail naming the file") {
+  TempFolder folder;
+  torch::nn::Linear weights(64, 64);
+  tinct::ArchiveWriter writer(tinct::ArchiveKind::encoder);
+  writer.module("encoder", *weights);
+  writer.save(folder / "encoder.pt");
+  const std::string good = read_text(folder / "encoder.pt");
+  REQUIRE(good.size() > 16384);
+  // The trailer is a zip comment (PKWARE APPNOTE 4.3.16: end record, comment length at
+  // offset 20): "tinct-sha256:" and 64 hex digits.
+  CHECK(good.substr(good.size() - 77, 13) == "tinct-sha256:");
+  CHECK(good.substr(good.size() - 99, 4) == std::string("PK\x05\x06"));
+  CHECK(static_cast<unsigned char>(good[good.size() - 79]) == 77);
+  CHECK(tinct::ArchiveReader(folder / "encoder.pt", tinct::ArchiveKind::encoder).version() == 3);
+
+  const auto damaged = [&](const std::string& bytes) {
+    const auto file = folder / "damaged.pt";
+    std::ofstream(file, std::ios::binary) << bytes;
+    try {
+      tinct::ArchiveReader reader(file, tinct::ArchiveKind::encoder);
+      torch::nn::Linear loaded(64, 64);
+      reader.module("encoder", *loaded);
+      return std::string("loaded");
+    } catch (const tinct::Error& e) {
+      return std::to_string(e.exit_code()) + " " + e.what();
+    }
+  };
+  for (const std::size_t at : {std::size_t{100}, good.size() / 2, good.size() - 120, good.size() - 40}) {
+    std::string bytes = good;
+    for (std::size_t i = at; i < at + 8 && i < bytes.size(); ++i) bytes[i] = static_cast<char>(bytes[i] ^ 0x5a);
+    const std::string message = damaged(bytes);
+    INFO("flipped at " << at << ": " << message);
+    CHECK((message.rfind("1 " + (folder / "damaged.pt").string() + " is damaged", 0) == 0 ||
+           message.rfind("1 " + (folder / "damaged.pt").string() + ": not a readable tinct archive", 0) == 0));
+  }
+  // Cut short: the trailer or the zip's own end record is gone (which message depends on where).
+  for (const std::size_t keep : {good.size() - 50, good.size() / 2}) {
+    const std::string message = damaged(good.substr(0, keep));
+    INFO("cut to " << keep << ": " << message);
+    CHECK(message.rfind("1 " + (folder / "damaged.pt").string(), 0) == 0);
+  }
 }
 
 TEST_CASE("a checkpoint restores the random generator, so dropout continues identically") {

@@ -38,7 +38,7 @@ CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global) {
   auto options = std::make_shared<FinetuneCommandOptions>();
   command.add_option("config", options->config, "Finetune config (YAML, config: finetune)")->required();
   CLI::Option* resume = command.add_flag("--resume", options->resume, "Continue the run from its last checkpoint");
-  CLI::Option* force = command.add_flag("--force", options->force, "Replace a finished run of the same name");
+  CLI::Option* force = command.add_flag("--force", options->force, "Start the run over; the old run stays until the new one ends");
   resume->excludes(force);
   command.add_option("--stop-after", options->stop_after,
                      "Stop after this many epochs in all (with a checkpoint); --resume continues")

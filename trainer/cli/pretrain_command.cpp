@@ -38,7 +38,7 @@ CommandRun setup_pretrain(CLI::App& command, const GlobalOptions& global) {
   auto options = std::make_shared<PretrainCommandOptions>();
   command.add_option("config", options->config, "Pretrain config (YAML, config: pretrain)")->required();
   CLI::Option* resume = command.add_flag("--resume", options->resume, "Continue the run from its last checkpoint");
-  CLI::Option* force = command.add_flag("--force", options->force, "Start the run over, deleting what its folder holds");
+  CLI::Option* force = command.add_flag("--force", options->force, "Start the run over; the old run stays until the new one ends");
   resume->excludes(force);
   command.add_option("--stop-after", options->stop_after,
                      "Stop after this many steps in all (with a checkpoint), e.g. to fit a time slot; "

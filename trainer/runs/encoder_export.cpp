@@ -44,7 +44,7 @@ int export_encoder(const fs::path& run, const fs::path& out) {
   std::vector<std::pair<std::string, torch::Tensor>> tensors;
   for (const auto& item : encoder->named_parameters()) tensors.emplace_back(item.key(), item.value().detach());
   for (const auto& item : encoder->named_buffers()) tensors.emplace_back(item.key(), item.value().detach());
-  const std::map<std::string, std::string> metadata{
+  std::map<std::string, std::string> metadata{
       {"format", "tinct-encoder"},
       {"bands", joined(artifact.normalisation.bands)},
       {"band_mean", joined(artifact.normalisation.mean)},
@@ -52,6 +52,7 @@ int export_encoder(const fs::path& run, const fs::path& out) {
       {"chip_size", std::to_string(artifact.chip_size)},
       {"model_spec", model_spec_yaml(artifact.model)},
       {"normalisation", "(reflectance - band_mean) / band_std per band; invalid pixels 0"}};
+  metadata[kDataChecksumKey] = safetensors_data_sha256(tensors);
   write_safetensors(out, tensors, metadata);
   return static_cast<int>(tensors.size());
 }

@@ -13,8 +13,11 @@
 
 #include "batches/chip_collection.hpp"
 #include "models/model_spec.hpp"
+#include "runs/archive_checksum.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
+#include "util/sha256.hpp"
+#include "util/write_failure.hpp"
 #include "util/text_lines.hpp"
 
 namespace fs = std::filesystem;
@@ -34,15 +37,6 @@ const char* kind_name(ArchiveKind kind) {
     case ArchiveKind::checkpoint: return "checkpoint";
   }
   return "";
-}
-
-std::string free_space_of(const fs::path& folder) {
-  std::error_code ec;
-  const fs::space_info space = fs::space(folder, ec);
-  if (ec) return "the free space of " + folder.string() + " is unknown (" + ec.message() + ")";
-  char text[64];
-  std::snprintf(text, sizeof(text), "%.1f MB", static_cast<double>(space.available) / (1024.0 * 1024.0));
-  return std::string(text) + " free on the file system of " + folder.string();
 }
 
 }  // namespace
@@ -103,7 +97,8 @@ void ArchiveWriter::random_state() { tensor("random_state", at::detail::getDefau
 
 // LibTorch's own file writer finishes the zip in its destructor, and a failed write there
 // (disk full) throws from a destructor and aborts the process. So the archive goes through
-// a writer function that reports every byte as taken and remembers the first failure.
+// a writer function that reports every byte as taken and remembers the first failure; it
+// also hashes the bytes and keeps the last ones, for the checksum trailer.
 void ArchiveWriter::save(const fs::path& file) {
   const fs::path folder = file.has_parent_path() ? file.parent_path() : fs::path(".");
   std::error_code ec;
@@ -113,14 +108,21 @@ void ArchiveWriter::save(const fs::path& file) {
   const int fd = ::open(temporary.c_str(), O_CREAT | O_TRUNC | O_WRONLY | O_CLOEXEC, 0644);
   if (fd < 0) fail_runtime("cannot write " + file.string() + ": " + std::strerror(errno) + "; check that the folder is writable");
   int failure = 0;
+  std::uint64_t total = 0;
+  Sha256 hash;
+  std::string tail;
   const auto write_all = [&](const void* data, std::size_t size) -> std::size_t {
     const char* bytes = static_cast<const char*>(data);
     for (std::size_t done = 0; done < size && failure == 0;) {
       const ssize_t written = ::write(fd, bytes + done, size - done);
       if (written < 0 && errno == EINTR) continue;
-      if (written <= 0) failure = written < 0 ? errno : EIO;
+      if (written <= 0) failure = written < 0 ? errno : ENOSPC;
       else done += static_cast<std::size_t>(written);
     }
+    hash.update(bytes, size);
+    tail.append(bytes, size);
+    if (tail.size() > 22) tail.erase(0, tail.size() - 22);
+    total += size;
     return size;
   };
   std::string problem;
@@ -129,12 +131,23 @@ void ArchiveWriter::save(const fs::path& file) {
   } catch (const c10::Error& error) {
     problem = error.what_without_backtrace();
   }
+  if (failure == 0 && problem.empty()) {
+    const auto trailer = archive_trailer(tail, total, hash.hex_digest());
+    if (!trailer) {
+      problem = "LibTorch's archive does not end in a zip end record";
+    } else if (::pwrite(fd, trailer->length_bytes.data(), 2, static_cast<off_t>(trailer->length_offset)) != 2) {
+      failure = errno != 0 ? errno : EIO;
+    } else {
+      write_all(trailer->comment.data(), trailer->comment.size());
+    }
+  }
   if (::close(fd) != 0 && failure == 0) failure = errno;
   if (failure != 0 && problem.empty()) problem = std::strerror(failure);
   if (!problem.empty()) {
+    // Measured before the temporary goes, so the free space shows what the write met.
+    const std::string message = write_failure_message(file, problem, static_cast<std::int64_t>(total));
     fs::remove(temporary, ec);
-    fail_runtime("cannot write " + file.string() + " (" + problem + "); " + free_space_of(folder) +
-                 ". Free some space (older runs, fewer checkpoints.keep) and try again");
+    fail_runtime(message);
   }
   if (save_hook()) save_hook()(temporary);
   commit_file(temporary, file);
@@ -174,6 +187,12 @@ ArchiveReader::ArchiveReader(const fs::path& file, ArchiveKind expected) : impl_
   impl_->kind = expected;
   if (!fs::exists(file)) fail_usage(file.string() + " not found; give the " + describe(expected));
   if (fs::is_directory(file)) fail_usage(file.string() + " is a folder; give the " + describe(expected));
+  const ChecksumResult checksum = check_archive_checksum(file);
+  if (checksum.check == ChecksumCheck::differs) {
+    fail_runtime(file.string() + " is damaged: its SHA-256 is " + checksum.found.substr(0, 16) + "..., not the " +
+                 checksum.recorded.substr(0, 16) + "... written at its end when it was saved. Restore it from a copy "
+                 "or run again the command that wrote it");
+  }
   try {
     impl_->archive.load_from(file.string());
   } catch (const c10::Error& error) {
@@ -185,6 +204,10 @@ ArchiveReader::ArchiveReader(const fs::path& file, ArchiveKind expected) : impl_
   if (impl_->version > kArchiveVersion) {
     fail_runtime(file.string() + ": written by a newer tinct (format " + std::to_string(impl_->version) +
                  ", this tinct reads up to " + std::to_string(kArchiveVersion) + "); upgrade tinct to read it");
+  }
+  if (impl_->version >= 3 && checksum.check == ChecksumCheck::absent) {
+    fail_runtime(file.string() + " is damaged: the SHA-256 written at its end is missing or cut. Restore it from a "
+                 "copy or run again the command that wrote it");
   }
   ArchiveKind found = expected;
   if (impl_->archive.try_read("kind", value) && value.isString()) {

@@ -31,7 +31,9 @@ struct ModelSpec;
 
 // Version 1: encoder.pt and model.pt before the kind was written (checkpoints had no
 // version). Version 2 adds "kind" to every archive and the random state to checkpoints.
-inline constexpr std::int64_t kArchiveVersion = 2;
+// Version 3 ends the file with the SHA-256 of everything before it, in the zip comment
+// (archive_checksum.hpp), so a damaged file fails on load instead of loading silently.
+inline constexpr std::int64_t kArchiveVersion = 3;
 
 enum class ArchiveKind { encoder, classifier, checkpoint };
 
@@ -67,7 +69,7 @@ class ArchiveWriter {
 class ArchiveReader {
  public:
   // Fails (usage) when the file is missing or is another kind of archive, (runtime) when it
-  // is unreadable or written by a newer tinct.
+  // is unreadable, damaged (its checksum differs) or written by a newer tinct.
   ArchiveReader(const std::filesystem::path& file, ArchiveKind expected);
   ~ArchiveReader();
   ArchiveReader(const ArchiveReader&) = delete;

@@ -2,11 +2,17 @@
 
 #include <yaml-cpp/yaml.h>
 
+#include <cerrno>
 #include <chrono>
+#include <cstdio>
+#include <cstring>
 #include <ctime>
+#include <fstream>
+#include <iterator>
 
 #include "raster/gdal_session.hpp"
 #include "runs/blas_probe.hpp"
+#include "runs/checkpoint.hpp"
 #include "runs/torch_runtime.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
@@ -58,22 +64,64 @@ std::string RunFolder::recorded_status(const fs::path& run_path) {
   }
 }
 
+// A kill between the two renames of a replacement leaves the old run at NAME.previous/
+// and no NAME/: put it back. A kill after them leaves both: the new run is in place.
 fs::path RunFolder::created(const fs::path& path) {
+  const fs::path aside = aside_folder_of(path);
   std::error_code ec;
+  if (fs::is_directory(aside)) {
+    if (!fs::exists(path)) {
+      if (::rename(aside.c_str(), path.c_str()) != 0) {
+        fail_runtime("cannot restore the run " + path.string() + " from " + aside.string() + ": " +
+                     std::strerror(errno) + "; rename it back by hand");
+      }
+      log::info("restored " + path.string() + " from " + aside.string() + ", where an interrupted --force had moved it");
+    } else {
+      fs::remove_all(aside, ec);
+      log::info("removed " + aside.string() + ": an interrupted --force had already put the new run in its place");
+    }
+  }
   fs::create_directories(path, ec);
   if (ec) fail_runtime("cannot create run folder " + path.string() + ": " + ec.message());
   return path;
 }
 
+namespace {
+
+std::string read_file_text(const fs::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  return std::string(std::istreambuf_iterator<char>(in), {});
+}
+
+// What to do with a run that exists, by what its run.yaml and checkpoints say.
+std::string existing_run_hint(const fs::path& path, const std::string& status) {
+  const bool checkpointed = latest_checkpoint(path / "checkpoints").has_value();
+  if (status == "done") return "pass --force to start it over (the finished run stays until the new one ends)";
+  if (!checkpointed) {
+    return "it has no checkpoint to continue from (it ended before its first one): pass --force to start it over";
+  }
+  return "pass --resume to continue it or --force to start it over";
+}
+
+}  // namespace
+
 RunFolder::RunFolder(fs::path path, RunOpening opening)
-    : path_(created(path)), lock_(path_, path_ / "lock", "wait for it to finish or choose another run name") {
+    : target_(path),
+      existed_(fs::exists(path)),
+      path_(created(path)),
+      lock_(path_, path_ / "lock", "wait for it to finish or choose another run name") {
   const std::string status = recorded_status(path_);
   if (!status.empty() && !opening.force && !opening.resume) {
-    fail_usage("run " + path_.string() + " exists (status: " + status +
-               "); pass --resume to continue it or --force to start it over");
+    fail_usage("run " + path_.string() + " exists (status: " + status + "); " + existing_run_hint(path_, status));
   }
-  if (opening.force && !opening.resume) clear_folder(path_, lock_.lock_file());
+  previous_run_yaml_ = status.empty() ? "" : read_file_text(path_ / "run.yaml");
+  if (opening.force && !opening.resume && status.empty()) clear_folder(path_, lock_.lock_file());
   log::set_file(path_ / "log.txt");
+  remove_leftover_attempt();
+  if (opening.force && !opening.resume && !status.empty()) {
+    start_replacement();
+    log::set_file(path_ / "log.txt");
+  }
   if (lock_.stale_holder() != 0) {
     log::write_file_only(log::Level::info, "took over the lock left by process " +
                                                std::to_string(lock_.stale_holder()) + ", which has ended");
@@ -81,6 +129,84 @@ RunFolder::RunFolder(fs::path path, RunOpening opening)
   if (blas_in_use().is_reference()) {
     log::warning("LibTorch is using the reference BLAS (about 30x slower matrix products); "
                  "install libopenblas0-pthread (scripts/setup.sh does)");
+  }
+}
+
+// NAME.partial/ of a --force that was killed (the old run at NAME/ is whole), and the
+// temporaries of writes a kill cut short: no one else writes here while we hold the lock.
+void RunFolder::remove_leftover_attempt() const {
+  std::error_code ec;
+  const fs::path partial = partial_folder_of(target_);
+  if (fs::exists(partial)) {
+    fs::remove_all(partial, ec);
+    log::info("removed " + partial.string() + ", left by an earlier --force that did not finish");
+  }
+  for (const fs::path& folder : {path_, path_ / "checkpoints"}) {
+    if (!fs::is_directory(folder)) continue;
+    for (const auto& entry : fs::directory_iterator(folder, ec)) {
+      const std::string name = entry.path().filename().string();
+      if (name.size() > 1 && name[0] == '.' && name.find(".tmp.") != std::string::npos) {
+        fs::remove(entry.path(), ec);
+        log::info("removed " + entry.path().string() + ", a temporary file left by an interrupted write");
+      }
+    }
+  }
+}
+
+void RunFolder::start_replacement() {
+  const fs::path staging = partial_folder_of(target_);
+  std::error_code ec;
+  fs::create_directories(staging, ec);
+  if (ec) fail_runtime("cannot create " + staging.string() + ": " + ec.message() + "; check that the folder is writable");
+  staging_lock_ = std::make_unique<FolderLock>(staging, staging / "lock");
+  path_ = staging;
+}
+
+void RunFolder::finish_replacement() {
+  if (!staging_lock_) return;
+  const fs::path aside = aside_folder_of(target_);
+  log::close_file();
+  if (::rename(target_.c_str(), aside.c_str()) != 0) {
+    fail_runtime("cannot replace the run " + target_.string() + ": moving it aside to " + aside.string() + " failed (" +
+                 std::strerror(errno) + "); the new run is in " + path_.string());
+  }
+  lock_.moved(aside, aside / "lock");
+  if (::rename(path_.c_str(), target_.c_str()) != 0) {
+    const int error = errno;
+    ::rename(aside.c_str(), target_.c_str());
+    lock_.moved(target_, target_ / "lock");
+    fail_runtime("cannot rename " + path_.string() + " to " + target_.string() + ": " + std::strerror(error) +
+                 "; the new run stays in " + path_.string());
+  }
+  staging_lock_->moved(target_, target_ / "lock");
+  path_ = target_;
+  log::set_file(path_ / "log.txt");
+  lock_.release();
+  std::error_code ec;
+  fs::remove_all(aside, ec);
+  if (ec) log::warning("cannot remove the replaced run " + aside.string() + ": " + ec.message() + "; remove it by hand");
+}
+
+void RunFolder::undo_start() {
+  std::error_code ec;
+  if (staging_lock_) {
+    log::close_file();
+    staging_lock_->release();
+    fs::remove_all(path_, ec);
+    path_ = target_;
+    staging_lock_.reset();
+    return;
+  }
+  if (!previous_run_yaml_.empty()) {
+    write_file_atomic(file("run.yaml"), previous_run_yaml_);
+    return;
+  }
+  log::close_file();
+  for (const char* name : {"run.yaml", "config.resolved.yaml", "log.txt", "metrics.csv"}) fs::remove(file(name), ec);
+  fs::remove(file("checkpoints"), ec);  // only when empty
+  if (!existed_) {
+    lock_.release();
+    fs::remove(path_, ec);  // only when empty
   }
 }
 

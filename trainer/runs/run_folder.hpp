@@ -3,10 +3,15 @@
 // holds an exclusive lock on it (NAME/lock, util/folder_lock): a second writer is
 // refused, a lock left by a killed process is taken over (noted in log.txt), and the
 // lock file is removed when the RunFolder ends. Every file in it is written atomically.
+// --force on a run that exists builds the new run beside it in NAME.partial/ (locked too)
+// and swaps it in at the end (finish_replacement): the old run moves to NAME.previous/,
+// the new one to NAME/, then the old one is deleted; so a kill leaves a whole run at NAME/
+// (the old one) or NAME.previous/ (put back by the next opening).
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
+#include <memory>
 #include <string>
 
 #include "util/folder_lock.hpp"
@@ -30,7 +35,10 @@ class RunFolder {
   RunFolder(const RunFolder&) = delete;
   RunFolder& operator=(const RunFolder&) = delete;
 
+  // Where this run's files go: NAME/, or NAME.partial/ while it replaces a run.
   const std::filesystem::path& path() const { return path_; }
+  const std::filesystem::path& target() const { return target_; }
+  bool replacing() const { return staging_lock_ != nullptr; }
   std::filesystem::path file(const std::string& name) const { return path_ / name; }
 
   // Saves the resolved config and returns its SHA-256.
@@ -41,11 +49,23 @@ class RunFolder {
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
+  // A replacing run that ended (done, stopped or interrupted) takes the old one's place.
+  void finish_replacement();
+  // The run never started (a usage error found after opening): what it wrote goes, and
+  // a run it reopened gets its previous run.yaml back.
+  void undo_start();
+
  private:
   static std::filesystem::path created(const std::filesystem::path& path);
+  void start_replacement();
+  void remove_leftover_attempt() const;
 
+  std::filesystem::path target_;
+  bool existed_ = false;         // the folder was there before this opening
+  std::string previous_run_yaml_;
   std::filesystem::path path_;
   FolderLock lock_;
+  std::unique_ptr<FolderLock> staging_lock_;
   std::string config_hash_;
   std::string started_;
 };

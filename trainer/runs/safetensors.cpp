@@ -13,6 +13,7 @@
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/json_text.hpp"
+#include "util/sha256.hpp"
 
 #if defined(__BYTE_ORDER__) && __BYTE_ORDER__ != __ORDER_LITTLE_ENDIAN__
 #error "safetensors.cpp copies tensor bytes as they are: it needs a little-endian host"
@@ -231,6 +232,20 @@ std::string read_whole_file(const fs::path& path) {
   return std::string(std::istreambuf_iterator<char>(in), {});
 }
 
+void check_data_checksum(const std::map<std::string, std::string>& metadata, const char* data,
+                         std::uint64_t data_size, const fs::path& file) {
+  const auto recorded = metadata.find(kDataChecksumKey);
+  if (recorded == metadata.end()) return;
+  Sha256 hash;
+  hash.update(data, static_cast<std::size_t>(data_size));
+  const std::string found = hash.hex_digest();
+  if (found != recorded->second) {
+    fail_runtime(file.string() + " is damaged: the SHA-256 of its tensor data is " + found.substr(0, 16) +
+                 "..., not the " + recorded->second.substr(0, 16) + "... in its header (" + kDataChecksumKey +
+                 "). Export it again");
+  }
+}
+
 }  // namespace
 
 void write_safetensors(const fs::path& path, const NamedTensors& tensors,
@@ -245,6 +260,14 @@ void write_safetensors(const fs::path& path, const NamedTensors& tensors,
     out.write(tensor.data_ptr(), static_cast<std::size_t>(tensor.numel() * tensor.element_size()));
   }
   out.commit();
+}
+
+std::string safetensors_data_sha256(const NamedTensors& tensors) {
+  Sha256 hash;
+  for (const auto& [name, tensor] : contiguous_on_cpu(tensors)) {
+    hash.update(tensor.data_ptr(), static_cast<std::size_t>(tensor.numel() * tensor.element_size()));
+  }
+  return hash.hex_digest();
 }
 
 NamedTensors read_safetensors(const fs::path& path, std::map<std::string, std::string>* metadata) {
@@ -266,6 +289,7 @@ NamedTensors read_safetensors(const fs::path& path, std::map<std::string, std::s
   for (const auto& [name, value] : header.items()) {
     if (name == kMetadataKey) {
       std::map<std::string, std::string> entries = metadata_of(value, path);  // checked always
+      check_data_checksum(entries, data, data_size, path);
       if (metadata != nullptr) *metadata = std::move(entries);
       continue;
     }

@@ -23,9 +23,15 @@ using NamedTensors = std::vector<std::pair<std::string, torch::Tensor>>;
 void write_safetensors(const std::filesystem::path& path, const NamedTensors& tensors,
                        const std::map<std::string, std::string>& metadata = {});
 
+// The metadata key whose value, when present, is the SHA-256 (hex) of the data section
+// (every tensor's bytes in header order): read_safetensors checks it.
+inline constexpr const char* kDataChecksumKey = "data_sha256";
+std::string safetensors_data_sha256(const NamedTensors& tensors);
+
 // Tensors in header order; `metadata`, when given, receives "__metadata__" (or is cleared).
 // Fails (runtime) with the path on any violation of the layout: short file, bad JSON,
-// unknown dtype, offsets outside the data, sizes that disagree with shapes, holes.
+// unknown dtype, offsets outside the data, sizes that disagree with shapes, holes, or
+// data that differs from its data_sha256.
 NamedTensors read_safetensors(const std::filesystem::path& path,
                               std::map<std::string, std::string>* metadata = nullptr);
 

@@ -62,22 +62,42 @@ void RunLifecycle::execute(const std::function<RunOutcome()>& body) {
   RunOutcome outcome;
   try {
     outcome = body();
-  } catch (const std::exception& error) {
-    const std::string reason = message_of(error);
-    log::write_file_only(log::Level::error, start_.command + " failed: " + reason);
-    try {
-      record(RunStatus::failed, reason);
-    } catch (const std::exception&) {
-      // The run's own error matters more than a status that could not be written (disk full).
+  } catch (const Error& error) {
+    if (error.exit_code() != 2) {
+      record_failure(error);
+      throw;
     }
+    // A usage error: the run never started, so it leaves nothing that blocks a re-run.
+    try {
+      folder_.undo_start();
+    } catch (const std::exception&) {
+    }
+    throw;
+  } catch (const std::exception& error) {
+    record_failure(error);
     throw;
   }
   record(outcome.status, outcome.reason);
+  folder_.finish_replacement();
   if (outcome.status == RunStatus::interrupted) {
     log::write_file_only(log::Level::warning, start_.command + ": " + outcome.reason);
     fail_runtime(start_.command + ": " + outcome.reason);
   }
   if (outcome.status == RunStatus::stopped) log::info(start_.command + ": " + outcome.reason);
+}
+
+void RunLifecycle::record_failure(const std::exception& error) {
+  const std::string reason = message_of(error);
+  log::write_file_only(log::Level::error, start_.command + " failed: " + reason);
+  try {
+    record(RunStatus::failed, reason);
+  } catch (const std::exception&) {
+    // The run's own error matters more than a status that could not be written (disk full).
+  }
+  if (folder_.replacing()) {
+    log::warning(start_.command + ": " + folder_.target().string() + " still holds the run it was to replace; "
+                 "this attempt's files are in " + folder_.path().string());
+  }
 }
 
 }  // namespace tinct

@@ -58,10 +58,13 @@ class RunLifecycle {
   // Runs the loop. Its outcome, or `failed` with the error's message, goes into run.yaml
   // (status, reason, end time) and log.txt; errors are rethrown. An interrupted run is then
   // reported as a runtime error (exit 1), so scripts do not carry on as if it were done.
+  // A usage error (exit 2) undoes the start instead: the run never began. A run replacing
+  // another (--force) takes its place when it ends, unless it failed.
   void execute(const std::function<RunOutcome()>& body);
 
  private:
   void record(RunStatus status, const std::string& reason);
+  void record_failure(const std::exception& error);
 
   RunStart start_;
   std::unique_ptr<RunFolder> folder_;  // the writer's

@@ -35,8 +35,9 @@ void fail_non_finite(const std::string& command, const std::string& where, const
   const auto last = latest_checkpoint(checkpoints);
   fail_runtime(command + ": the loss is not finite at " + where + "; training stopped. The last good checkpoint is " +
                (last ? last->string() : std::string("none (no checkpoint was written yet)")) +
-               ". Lower train.lr, keep train.clip_norm on, or check the stores for extreme values, then "
-               "continue with --resume");
+               ". Start the run again with a lower train.lr (and train.clip_norm on), or check the stores for "
+               "extreme values: --force replaces this run, or choose another output; --resume continues only with "
+               "the same config");
 }
 
 }  // namespace tinct
