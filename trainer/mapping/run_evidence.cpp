@@ -7,7 +7,6 @@
 
 #include "batches/batch.hpp"
 #include "finetune/finetune_config.hpp"
-#include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
 #include "assess/temperature_scaling.hpp"
 #include "runs/metrics_log.hpp"
@@ -114,12 +113,9 @@ RunEvidence gather_run_evidence(const fs::path& run, WindowModel& model, bool wi
   }
   ChipCollection chips(config.stores);
   chips.use_normalisation(model.normalisation());
-  const LabelSplit split = split_labels(chips, config.split);
+  const LabelSplit split = split_labels(chips, config.split, config.budget);  // as the run drew it
   fit_calibration(model, chips, split.validation, batch, evidence);
-  if (with_applicability) {
-    const std::vector<ChipRef> train = apply_budget(chips, split.train, config.budget, config.train.seed);
-    fit_area(model, chips, train, config.split, batch, threads, evidence);
-  }
+  if (with_applicability) fit_area(model, chips, split.train, config.split, batch, threads, evidence);
   return evidence;
 }
 

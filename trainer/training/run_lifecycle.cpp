@@ -40,6 +40,12 @@ RunFolder& RunLifecycle::folder() {
   return *folder_;
 }
 
+fs::path RunLifecycle::file(const std::string& name) const {
+  return folder_ ? folder_->file(name) : start_.output / name;
+}
+
+const fs::path& RunLifecycle::path() const { return folder_ ? folder_->path() : start_.output; }
+
 bool RunLifecycle::is_writer() const { return !start_.group || start_.group->is_writer(); }
 
 bool RunLifecycle::stop_requested() const {
@@ -69,7 +75,7 @@ void RunLifecycle::execute(const std::function<RunOutcome()>& body) {
     }
     // A usage error: the run never started, so it leaves nothing that blocks a re-run.
     try {
-      folder_.undo_start();
+      if (folder_) folder_->undo_start();
     } catch (const std::exception&) {
     }
     throw;
@@ -78,7 +84,7 @@ void RunLifecycle::execute(const std::function<RunOutcome()>& body) {
     throw;
   }
   record(outcome.status, outcome.reason);
-  folder_.finish_replacement();
+  if (folder_) folder_->finish_replacement();
   if (outcome.status == RunStatus::interrupted) {
     log::write_file_only(log::Level::warning, start_.command + ": " + outcome.reason);
     fail_runtime(start_.command + ": " + outcome.reason);
@@ -94,9 +100,9 @@ void RunLifecycle::record_failure(const std::exception& error) {
   } catch (const std::exception&) {
     // The run's own error matters more than a status that could not be written (disk full).
   }
-  if (folder_.replacing()) {
-    log::warning(start_.command + ": " + folder_.target().string() + " still holds the run it was to replace; "
-                 "this attempt's files are in " + folder_.path().string());
+  if (folder_ && folder_->replacing()) {
+    log::warning(start_.command + ": " + folder_->target().string() + " still holds the run it was to replace; "
+                 "this attempt's files are in " + folder_->path().string());
   }
 }
 

@@ -41,9 +41,10 @@ class RunLifecycle {
 
   // The open run folder: the writer's only (is_writer()).
   RunFolder& folder();
-  // A file in the run folder, for every process (checkpoints to resume from).
-  std::filesystem::path file(const std::string& name) const { return start_.output / name; }
-  const std::filesystem::path& path() const { return start_.output; }
+  // A file in the run folder, for every process (checkpoints to resume from). The writer's
+  // folder may be a replacement built beside the old run (--force), so ask it first.
+  std::filesystem::path file(const std::string& name) const;
+  const std::filesystem::path& path() const;
   const std::string& config_hash() const { return config_hash_; }
   // Whether this process writes checkpoints and artefacts: rank 0 of a data-parallel job.
   bool is_writer() const;
