@@ -82,7 +82,7 @@ stores: [sites.labels]
 output: {output or 'runs/' + name}
 init: {init}
 freeze: {{policy: full}}
-split: {{method: blocks, block_size: 640, folds: 4, fold: 1}}
+split: {{method: blocks, block_size: 640, folds: 4, fold: 2}}
 train: {{epochs: {epochs}, batch: 16, lr: {lr}, warmup: 2, seed: 3, patience: 100}}
 """)
 

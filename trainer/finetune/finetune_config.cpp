@@ -79,7 +79,7 @@ LabelBudget read_budget(const ConfigNode& root, std::uint64_t split_seed) {
   const ConfigNode node = root.section("budget");
   budget.per_class = static_cast<int>(node.integer("per_class", 0, 0));
   budget.fraction = node.number("fraction", 1.0, 1e-6, 1.0);
-  if (budget.per_class > 0 && node.has("fraction")) {
+  if (budget.per_class > 0 && budget.fraction < 1.0) {  // 1 is the default a resolved config writes
     node.fail("fraction", "is given with per_class; give one of them");
   }
   budget.seed = static_cast<std::uint64_t>(node.integer("seed", static_cast<std::int64_t>(split_seed), 0));

@@ -360,7 +360,7 @@ std::vector<ChipRef> budgeted_labels(const LabelSplit& split) {
 
 FinetuneResult fit_and_test_probe(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const FinetuneConfig& c) {
   const std::vector<ChipRef> labels = budgeted_labels(data.split);
-  fit_probe(f.model, data.chips, labels, data.class_weights, c.train.batch, c.train.seed);
+  fit_probe(f.model, data.chips, labels, class_weights(c, data.chips, labels), c.train.batch, c.train.seed);
   if (run.is_writer()) {
     save_classifier(run.folder().file("model.pt"), f.model, data.artifact);
     write_probe_features(run.folder().file("features.csv"), f.model, data.chips, labels, data.split.test,

@@ -16,7 +16,8 @@ namespace fs = std::filesystem;
 namespace tinct {
 namespace {
 
-const std::vector<std::string> kLeading{"id", "x", "y", "date", "true", "predicted"};
+// The columns classifier_predictions.cpp writes before the class probabilities.
+const std::vector<std::string> kLeading{"id", "x", "y", "crs", "lon", "lat", "date", "true", "predicted"};
 
 int class_index(const PredictionTable& t, const std::string& name, const fs::path& file, int line) {
   const auto found = std::find(t.classes.begin(), t.classes.end(), name);
@@ -42,7 +43,8 @@ std::string table_csv(const PredictionTable& t) {
   for (const auto& name : t.classes) text += ",p_" + csv_field(name);
   text += "\n";
   for (std::size_t i = 0; i < t.size(); ++i) {
-    text += csv_field(t.ids[i]) + "," + t.x[i] + "," + t.y[i] + "," + csv_field(t.date[i]) + "," +
+    text += csv_field(t.ids[i]) + "," + t.x[i] + "," + t.y[i] + "," + csv_field(t.crs[i]) + "," + t.lon[i] + "," +
+            t.lat[i] + "," + csv_field(t.date[i]) + "," +
             csv_field(t.classes[t.truth[i]]) + "," + csv_field(t.classes[t.predicted[i]]);
     for (const double p : t.probabilities[i]) text += "," + number_text(p);
     text += "\n";
@@ -62,14 +64,15 @@ PredictionTable read_prediction_table(const fs::path& file) {
   PredictionTable t;
   if (csv.header.size() < kLeading.size() + 2 ||
       !std::equal(kLeading.begin(), kLeading.end(), csv.header.begin())) {
-    fail_runtime(file.string() + ": not a tinct predictions.csv (header id,x,y,date,true,predicted,p_...)");
+    fail_runtime(file.string() + ": not a tinct predictions.csv (header id,x,y,crs,lon,lat,date,true,predicted,p_...)");
   }
   for (std::size_t c = kLeading.size(); c < csv.header.size(); ++c) t.classes.push_back(csv.header[c].substr(2));
   for (const CsvRow& row : csv.rows) {
     const auto& f = row.fields;
-    t.ids.push_back(f[0]), t.x.push_back(f[1]), t.y.push_back(f[2]), t.date.push_back(f[3]);
-    t.truth.push_back(class_index(t, f[4], file, row.line));
-    t.predicted.push_back(class_index(t, f[5], file, row.line));
+    t.ids.push_back(f[0]), t.x.push_back(f[1]), t.y.push_back(f[2]), t.crs.push_back(f[3]);
+    t.lon.push_back(f[4]), t.lat.push_back(f[5]), t.date.push_back(f[6]);
+    t.truth.push_back(class_index(t, f[7], file, row.line));
+    t.predicted.push_back(class_index(t, f[8], file, row.line));
     std::vector<double> p;
     for (std::size_t c = kLeading.size(); c < f.size(); ++c) {
       char* end = nullptr;

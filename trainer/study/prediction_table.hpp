@@ -11,7 +11,7 @@ namespace tinct {
 
 struct PredictionTable {
   std::vector<std::string> classes;
-  std::vector<std::string> ids, x, y, date;  // as written (x, y, date only passed through)
+  std::vector<std::string> ids, x, y, crs, lon, lat, date;  // as written (all but ids only passed through)
   std::vector<int> truth, predicted;         // class indices
   std::vector<std::vector<double>> probabilities;  // (N, classes)
   std::size_t size() const { return ids.size(); }
