@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <optional>
 #include <set>
 
 #include "assess/holm_adjustment.hpp"
@@ -42,6 +43,18 @@ std::map<RunKey, const CollectedRun*> runs_of(const StudyPlan& plan, const Colle
 }
 
 double rounded(double value) { return std::round(value * 1e9) / 1e9; }
+
+// Resampling k clusters gives at most C(2k - 1, k) distinct means (3 for two folds): below
+// five clusters a bootstrap interval is far too narrow, so the corrected t interval is used.
+constexpr std::size_t kMinClusters = 5;
+
+std::size_t cluster_count(const std::vector<int>& clusters) {
+  return std::set<int>(clusters.begin(), clusters.end()).size();
+}
+
+bool few_clusters(const std::vector<int>& clusters) {
+  return !clusters.empty() && cluster_count(clusters) < kMinClusters;
+}
 
 // Whole fold partitions when pairs come from several; whole folds when they share one.
 std::string clusters_of(const StudyPlan& plan, const std::vector<const CollectedRun*>& runs,
@@ -92,9 +105,15 @@ PairedComparison compare(const StudyPlan& plan, const CollectedStudy& study, con
                  std::to_string(kBootstrapSeed) + (interval.defined ? "" : " (too few to resample: no interval)");
   const WilcoxonResult wilcoxon = wilcoxon_signed_rank(detail.differences);
   if (wilcoxon.defined) c.wilcoxon_p = wilcoxon.p;
+  std::optional<TTestResult> corrected;
   if (c.pairs >= 2 && study.test_train_ratio > 0) {
-    const TTestResult t = corrected_resampled_t_test(detail.differences, study.test_train_ratio);
-    if (t.defined) c.corrected_t_p = t.p;
+    corrected = corrected_resampled_t_test(detail.differences, study.test_train_ratio);
+    if (corrected->defined) c.corrected_t_p = corrected->p;
+  }
+  if (few_clusters(detail.clusters) && corrected && corrected->defined) {
+    c.low = corrected->low, c.high = corrected->high;
+    c.resampling = "the Nadeau-Bengio corrected t interval: only " + std::to_string(cluster_count(detail.clusters)) +
+                   " " + unit.substr(0, unit.find(" (")) + " to resample, too few for a bootstrap";
   }
   const McNemarResult mcnemar_result = mcnemar(detail.mcnemar_b, detail.mcnemar_c);
   if (mcnemar_result.defined) c.mcnemar_p = mcnemar_result.exact_p;
