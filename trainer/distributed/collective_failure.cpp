@@ -20,7 +20,7 @@ std::string engine_text(const std::exception& error) {
   return text;
 }
 
-std::string speaker(const CollectiveContext& context) {
+std::string rank_label(const CollectiveContext& context) {
   return "rank " + std::to_string(context.place.rank) + " of " + std::to_string(context.place.world);
 }
 
@@ -37,12 +37,12 @@ std::string peer(const CollectiveContext& context) {
 }  // namespace
 
 void fail_join(const CollectiveContext& context, const std::exception& error) {
-  fail_runtime(speaker(context) + " could not join the job at " + address(context) + " (" + engine_text(error) +
+  fail_runtime(rank_label(context) + " could not join the job at " + address(context) + " (" + engine_text(error) +
                "). " + kStartHint + "; if the port is in use, pick another MASTER_PORT");
 }
 
 void fail_incomplete_join(const CollectiveContext& context, int joined) {
-  fail_runtime(speaker(context) + ": only " + std::to_string(joined) + " of " + std::to_string(context.place.world) +
+  fail_runtime(rank_label(context) + ": only " + std::to_string(joined) + " of " + std::to_string(context.place.world) +
                " ranks joined the job at " + address(context) + " within " + std::to_string(context.timeout_seconds) +
                " s. " + kStartHint);
 }
@@ -54,7 +54,7 @@ void fail_collective(const CollectiveContext& context, const std::string& what, 
       silent ? "no answer from " + peer(context) + " within " + std::to_string(context.timeout_seconds) +
                    " s during the " + what + ": it is stuck, stopped or cannot be reached"
              : "lost contact with " + peer(context) + " during the " + what + ": it stopped or cannot be reached";
-  fail_runtime(speaker(context) + ": " + lost + " (" + detail + "). If it printed an error, that is the cause; "
+  fail_runtime(rank_label(context) + ": " + lost + " (" + detail + "). If it printed an error, that is the cause; "
                "otherwise check its machine and log. The job stops here; --resume restarts from the last "
                "checkpoint, with the same or another number of processes");
 }

@@ -7,7 +7,7 @@
 
 #include "batches/batch.hpp"
 #include "finetune/finetune_config.hpp"
-#include "finetune/label_split.hpp"
+#include "inference/split_table.hpp"
 #include "assess/temperature_scaling.hpp"
 #include "runs/metrics_log.hpp"
 #include "util/atomic_file.hpp"
@@ -97,6 +97,32 @@ void fit_area(WindowModel& model, const ChipCollection& chips, const std::vector
             metric_text(evidence.applicability->threshold));
 }
 
+struct RecordedSplit {
+  std::vector<ChipRef> train, validation;
+};
+
+// The chips the run trained and validated on, as its split.csv recorded them (not drawn
+// again, so a map always matches the run whatever the split code does later).
+RecordedSplit recorded_split(const fs::path& file, const FinetuneConfig& config) {
+  if (!fs::exists(file)) {
+    fail_runtime(file.string() + ": not found; map needs the split the run recorded (set aoa: false to map "
+                 "without the area of applicability and calibration, or fine-tune the run again)");
+  }
+  std::map<std::string, int> store_index;
+  for (std::size_t i = 0; i < config.stores.size(); ++i) store_index[config.stores[i].string()] = static_cast<int>(i);
+  RecordedSplit split;
+  for (const SplitRow& row : read_split_table(file)) {
+    const auto store = store_index.find(row.store);
+    if (store == store_index.end()) {
+      fail_runtime(file.string() + ": names store " + row.store + ", which the run's config does not list");
+    }
+    const ChipRef ref{store->second, row.index};
+    if (row.role == "train") split.train.push_back(ref);
+    if (row.role == "validation") split.validation.push_back(ref);
+  }
+  return split;
+}
+
 }  // namespace
 
 RunEvidence gather_run_evidence(const fs::path& run, WindowModel& model, bool with_applicability, int batch,
@@ -113,7 +139,7 @@ RunEvidence gather_run_evidence(const fs::path& run, WindowModel& model, bool wi
   }
   ChipCollection chips(config.stores);
   chips.use_normalisation(model.normalisation());
-  const LabelSplit split = split_labels(chips, config.split, config.budget);  // as the run drew it
+  const RecordedSplit split = recorded_split(run / "split.csv", config);
   fit_calibration(model, chips, split.validation, batch, evidence);
   if (with_applicability) fit_area(model, chips, split.train, config.split, batch, threads, evidence);
   return evidence;
