@@ -212,7 +212,9 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
         worst_p = max(worst_p, abs(float(row["p_bright"]) - probabilities[1, r, c]))
         worst_aoa = max(worst_aoa, abs(float(row["aoa_index"]) - aoa_band[r, c]))
     print(f"--points vs map on {compared} windows: max |dp| {worst_p:.2e}, max |d aoa| {worst_aoa:.2e}")
-    checks.check(compared > 10 and worst_p < 1e-5 and worst_aoa < 1e-4,
+    # The same windows go through the model in differently sized batches, so float32 sums run
+    # in another order: differences of 1e-5 were seen; a wrong window moves p by far more.
+    checks.check(compared > 10 and worst_p < 1e-4 and worst_aoa < 1e-4,
                  f"--points and the map differ: |dp| {worst_p:.2e}, |d aoa| {worst_aoa:.2e}")
     train_index = np.array([float(points[f"train_{i}"]["aoa_index"]) for i in range(len(features))])
     checks.check(np.abs(train_index).max() < 1e-3,
