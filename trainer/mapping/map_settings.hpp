@@ -1,5 +1,7 @@
 // The settings of `tinct map`, from a YAML config (config: map) or from the short form
-// `tinct map RUN RASTER --out DIR`. Required: run, output, scenes (as in label configs).
+// `tinct map RUN RASTER --out DIR`. Required: output, scenes (as in label configs) and one
+// of run: (a finetune run), runs: (an ensemble of runs) or study: with arm: (optional
+// budget:, fold:; the rule in study_arm_runs.hpp).
 // Defaults: stride chip size / 4, mode dense where the stride is a multiple of the
 // encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
 // sensor none (scenes are read with a profile made from the run's bands, and stored
@@ -8,12 +10,14 @@
 #pragma once
 
 #include <filesystem>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "raster/resampling.hpp"
 #include "raster/scene_spec.hpp"
 #include "raster/sensor_profile.hpp"
+#include "mapping/study_arm_runs.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {
@@ -33,7 +37,9 @@ struct RunInputs {
 };
 
 struct MapSettings {
-  std::filesystem::path run;
+  std::filesystem::path run;                // the first of runs
+  std::vector<std::filesystem::path> runs;  // several: an ensemble
+  std::string source;                       // where the runs came from, in words
   std::filesystem::path output;
   int stride = 0;
   MapMode mode = MapMode::dense;
@@ -54,6 +60,9 @@ struct MapSettings {
   AlignSettings align;
   RunInputs inputs;
   std::string config_hash;
+
+  // "RUN" or "ARM (N seeds)" or "ensemble of N runs", for titles.
+  std::string model_name() const;
 };
 
 // Reads the run's model description and store manifests (the run's config.resolved.yaml).
@@ -62,9 +71,10 @@ RunInputs read_run_inputs(const std::filesystem::path& run);
 // `root` is the config's top level; calls finish() on every section it reads.
 MapSettings read_map_config(const ConfigNode& root);
 
-// The short form: one raster whose bands are the run's inputs in order.
+// The short form: one raster whose bands are the run's inputs in order. With an arm,
+// `run` is a study folder.
 MapSettings map_settings_for_raster(const std::filesystem::path& run, const std::filesystem::path& raster,
-                                    const std::filesystem::path& output);
+                                    const std::filesystem::path& output, const std::optional<StudyArmChoice>& arm = {});
 
 std::string to_string(MapMode mode);
 
