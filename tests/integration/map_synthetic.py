@@ -255,19 +255,22 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     checks.check(np.median(odd_index) > 2 * np.median(away_index), "the unseen cover's index is not larger")
     checks.check(all(mask_band[r, c] == 0 for r, c in odd), "cells of the unseen cover are not marked outside")
 
-    # Dense maps take the AOA from exact windows every 4th window (aoa_step 4): a grid 4 times
-    # coarser, same origin, each cell the exact map's value at its middle window.
+    # Dense maps take the AOA from exact windows every aoa_step-th window (the default, 8, in
+    # TINCT_AOA_STEP): a grid aoa_step times coarser, same origin, each cell the exact map's
+    # value at its middle window.
     dense_aoa_path = os.path.join(work, "maps", "dense", "b", "aoa.tif")
     info = gdalinfo(dense_aoa_path)
-    coarse = -(-cells // 4)
-    checks.check(np.allclose(info["geoTransform"], [expected_gt[0], expected_gt[1] * 4, 0.0, expected_gt[3], 0.0,
-                                                    expected_gt[5] * 4], rtol=0, atol=1e-6) and
+    step = int(info["metadata"][""]["TINCT_AOA_STEP"])
+    checks.check(step == 8, f"dense maps' default aoa_step is {step}, not 8")
+    coarse = -(-cells // step)
+    checks.check(np.allclose(info["geoTransform"], [expected_gt[0], expected_gt[1] * step, 0.0, expected_gt[3], 0.0,
+                                                    expected_gt[5] * step], rtol=0, atol=1e-6) and
                  info["size"] == [coarse, coarse], f"dense aoa.tif grid {info['geoTransform']} {info['size']}")
     dense_aoa = read(dense_aoa_path, 1)
     worst = 0.0
     for i in range(coarse):
         for j in range(coarse):
-            wr, wc = min(4 * i + 2, cells - 1), min(4 * j + 2, cells - 1)
+            wr, wc = min(step * i + step // 2, cells - 1), min(step * j + step // 2, cells - 1)
             if classes[wr, wc] != 255:
                 worst = max(worst, abs(dense_aoa[i, j] - aoa_band[wr, wc]))
     checks.check(worst < 1e-4, f"dense aoa.tif differs from the exact windows' index by {worst:.2e}")

@@ -81,7 +81,7 @@ void read_options(const ConfigNode& root, MapSettings& s) {
                                                                              : ProbabilityType::float32;
   s.min_valid = root.number("min_valid", 0.5, 0.0, 1.0);
   s.aoa = root.flag("aoa", true);
-  s.aoa_step = static_cast<int>(root.integer("aoa_step", 4, 1, 32));
+  s.aoa_step = static_cast<int>(root.integer("aoa_step", 8, 1, 32));
   if (32 % s.aoa_step != 0) root.fail("aoa_step", "must divide 32: 1, 2, 4, 8, 16 or 32");
   s.batch = static_cast<int>(root.integer("batch", 32, 1, 4096));
 }

@@ -6,7 +6,7 @@
 // encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
 // sensor none (scenes are read with a profile made from the run's bands, and stored
 // values become reflectance with the scale and offset of the run's label store),
-// grid resolution the run's store pixel size, aoa_step 4 (dense mode only).
+// grid resolution the run's store pixel size, aoa_step 8 (dense mode only).
 #pragma once
 
 #include <filesystem>
@@ -50,7 +50,9 @@ struct MapSettings {
   // those of exact windows (the training chips' are: dense features carry context from beyond
   // the window and lie elsewhere in feature space), so dense maps compute it on exact windows
   // every aoa_step windows, aoa.tif on a grid aoa_step times coarser. Exact maps use 1.
-  int aoa_step = 4;
+  // Those windows cost a whole exact pass over the scene at step 4 (64 px windows every
+  // 64 px), as much as the dense pass itself; step 8 costs a quarter of that (the bench).
+  int aoa_step = 8;
   int applicability_step() const { return mode == MapMode::dense ? aoa_step : 1; }
   int batch = 32;
   SensorProfile profile;      // reads the scenes
