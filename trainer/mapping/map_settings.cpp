@@ -146,7 +146,9 @@ void read_model_source(const ConfigNode& root, MapSettings& s) {
 
 std::string MapSettings::model_name() const {
   if (runs.size() <= 1) return run.filename().string();
-  return source;
+  const auto arm = source.find(", arm ");
+  if (arm == std::string::npos) return source;
+  return source.substr(arm + 2);  // "arm A, budget B, fold F: N seeds"
 }
 
 RunInputs read_run_inputs(const fs::path& run) {

@@ -63,7 +63,7 @@ struct MapSettings {
   RunInputs inputs;
   std::string config_hash;
 
-  // "RUN" or "ARM (N seeds)" or "ensemble of N runs", for titles.
+  // "RUN", "ensemble of N runs" or "arm A, budget B, fold F: N seeds", for titles.
   std::string model_name() const;
 };
 
