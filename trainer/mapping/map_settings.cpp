@@ -116,7 +116,7 @@ std::string arm_source(const StudyArmChoice& c, const StudyArmRuns& r) {
 void read_model_source(const ConfigNode& root, MapSettings& s) {
   const int given = (root.has("run") ? 1 : 0) + (root.has("runs") ? 1 : 0) + (root.has("study") ? 1 : 0);
   if (given != 1) {
-    root.fail(given == 0 ? "run" : "runs", "give exactly one of run: (a finetune run), runs: (finetune runs to "
+    root.fail(given == 0 ? "run" : "", "give exactly one of run: (a finetune run), runs: (finetune runs to "
                                            "average as an ensemble) or study: with arm: (a study arm's seeds)");
   }
   if (root.has("run")) {
