@@ -2,8 +2,11 @@
 
 A generated SIZE x SIZE (default 4096), 12-band uint16 scene; a classifier of the default
 model (compact encoder, width 1, 64 px chips) fine-tuned from scratch for one epoch on 200
-labels of it; the whole scene mapped at stride 16 in exact and dense mode:
-- megapixels of scene per second, each mode, and dense's speed-up (goal: at least 8x);
+labels of it; the whole scene mapped at stride 16 in exact and dense mode, the two modes
+alternating over TINCT_BENCH_ROUNDS rounds (best and median of each):
+- megapixels of scene per second, each mode, for the whole command (model, calibration and
+  training features included) and for the scene's own loop, and dense's speed-up (goal: at
+  least 8x);
 - peak resident memory of each (GNU time's %M; goal: under 500 MB whatever the scene size);
 - agreement of the two class maps over cells with data (goal: at least 98 %).
 Usage: map_bench.py TINCT WORKDIR [SIZE]"""
@@ -14,6 +17,9 @@ import time
 
 import numpy as np
 from osgeo import gdal, osr
+
+sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
+from bench_common import ROUNDS, best_median, machine_line  # noqa: E402
 
 TINCT, WORK = sys.argv[1], sys.argv[2]
 SIZE = int(sys.argv[3]) if len(sys.argv) > 3 else 4096
@@ -78,21 +84,36 @@ for args in (["label", "--force", "map-label.yaml"], ["finetune", "--force", "ma
         sys.exit(f"tinct {args[0]} failed:\n{run.stderr[-2000:]}")
 
 megapixels = SIZE * SIZE / 1e6
-results = {}
-for mode in ("exact", "dense"):
-    seconds, rss, scene_rate = timed(["map", "map-bench-run", scene, "--out", f"map-{mode}", "--mode", mode, "--stride", "16",
-                          "--force"])
-    results[mode] = (seconds, rss, scene_rate)
+runs = {"exact": [], "dense": []}
+for round_ in range(ROUNDS):
+    for mode in ("exact", "dense") if round_ % 2 == 0 else ("dense", "exact"):
+        runs[mode].append(timed(["map", "map-bench-run", scene, "--out", f"map-{mode}", "--mode", mode,
+                                 "--stride", "16", "--force"]))
 classes = {m: gdal.Open(os.path.join(WORK, f"map-{m}", os.path.basename(scene)[:-4], "classes.tif")).ReadAsArray()
-           for m in results}
+           for m in runs}
 valid = classes["exact"] != 255
 agreement = float(np.mean(classes["exact"][valid] == classes["dense"][valid]))
+with open("/proc/loadavg") as f:
+    load = f.read().split()[:3]
 print(f"\ntinct map, {SIZE} x {SIZE} x {BANDS} scene, 64 px windows at stride 16, compact encoder (width 1)")
-print("(whole command: model, calibration and training features included; scene: the scene's own loop)")
-print(f"{'mode':<8}{'seconds':>10}{'Mpx/s':>10}{'scene Mpx/s':>13}{'peak RSS MB':>14}")
-for mode, (seconds, rss, scene_rate) in results.items():
-    print(f"{mode:<8}{seconds:>10.1f}{megapixels / seconds:>10.3f}{scene_rate:>13.3f}{rss:>14.0f}")
-print(f"dense speed-up {results['exact'][0] / results['dense'][0]:.1f}x whole command, "
-      f"{results['dense'][2] / results['exact'][2]:.1f}x scene loop (goal >= 8x); "
-      f"class agreement {100 * agreement:.2f} % of {int(valid.sum())} cells (goal >= 98 %); "
-      f"memory goal < 500 MB")
+print(f"machine: {machine_line()}; load average after the rounds: {' '.join(load)}")
+print(f"{ROUNDS} interleaved rounds; whole command: model, calibration and training features included; "
+      "scene loop: the scene's own loop")
+print(f"{'mode':<7}{'command Mpx/s best':>20}{'median':>9}{'scene loop Mpx/s best':>23}{'median':>9}"
+      f"{'peak RSS MB max':>17}{'median':>9}")
+figures = {}
+for mode, results in runs.items():
+    command = best_median([megapixels / seconds for seconds, _, _ in results])
+    loop = best_median([rate for _, _, rate in results])
+    rss = [r for _, r, _ in results]
+    figures[mode] = (command, loop, max(rss))
+    print(f"{mode:<7}{command[0]:>20.3f}{command[1]:>9.3f}{loop[0]:>23.3f}{loop[1]:>9.3f}"
+          f"{max(rss):>17.0f}{sorted(rss)[len(rss) // 2]:>9.0f}")
+command_ratio = figures["dense"][0][1] / figures["exact"][0][1]
+loop_ratio = figures["dense"][1][1] / figures["exact"][1][1]
+peak = max(figures[m][2] for m in figures)
+print(f"dense speed-up (medians): {command_ratio:.1f}x whole command, {loop_ratio:.1f}x scene loop "
+      f"(goal >= 8x: {'met' if loop_ratio >= 8 else 'not met'})")
+print(f"class agreement {100 * agreement:.2f} % of {int(valid.sum())} cells (goal >= 98 %: "
+      f"{'met' if agreement >= 0.98 else 'not met'})")
+print(f"peak memory {peak:.0f} MB (goal < 500 MB: {'met' if peak < 500 else 'not met'})")

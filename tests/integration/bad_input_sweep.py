@@ -178,6 +178,15 @@ def cases():
                {"c.yaml": replaced(replaced(label, "source: sites.csv", "source: broken.geojson"), "x: x, y: y, ", ""),
                 "broken.geojson": '{"type": "FeatureCollection", "features": [ {"type": '})
     yield case("label output exists", ["label", "label.yaml"], 2, "sites.labels already exists")
+    m = "config: map\noutput: maps/sweep\nscenes: [{id: a, path: tiny.tif}]\n"
+    yield case("map run and study both", ["map", "c.yaml"], 2, "give exactly one of run:",
+               {"c.yaml": m + "run: runs/fine\nstudy: runs\narm: fine\n"})
+    yield case("map study without runs folder", ["map", "c.yaml"], 2, "has no runs/ folder",
+               {"c.yaml": m + "study: runs/fine\narm: scratch\n"})
+    yield case("map ensemble member missing", ["map", "c.yaml"], 2, "runs/nothing holds no model.pt",
+               {"c.yaml": m + "runs: [runs/fine, runs/nothing]\n"})
+    yield case("map budget without arm", ["map", "runs/fine", "tiny.tif", "--out", "maps/sweep", "--budget", "3"],
+               2, "give --arm ARM too", None, prepare_small_scene)
 
 
 def snapshot(work):

@@ -10,6 +10,7 @@ import json
 import os
 import subprocess
 import sys
+import shutil
 import tempfile
 
 import numpy as np
@@ -256,19 +257,22 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     checks.check(np.median(odd_index) > 2 * np.median(away_index), "the unseen cover's index is not larger")
     checks.check(all(mask_band[r, c] == 0 for r, c in odd), "cells of the unseen cover are not marked outside")
 
-    # Dense maps take the AOA from exact windows every 4th window (aoa_step 4): a grid 4 times
-    # coarser, same origin, each cell the exact map's value at its middle window.
+    # Dense maps take the AOA from exact windows every aoa_step-th window (the default, 8, in
+    # TINCT_AOA_STEP): a grid aoa_step times coarser, same origin, each cell the exact map's
+    # value at its middle window.
     dense_aoa_path = os.path.join(work, "maps", "dense", "b", "aoa.tif")
     info = gdalinfo(dense_aoa_path)
-    coarse = -(-cells // 4)
-    checks.check(np.allclose(info["geoTransform"], [expected_gt[0], expected_gt[1] * 4, 0.0, expected_gt[3], 0.0,
-                                                    expected_gt[5] * 4], rtol=0, atol=1e-6) and
+    step = int(info["metadata"][""]["TINCT_AOA_STEP"])
+    checks.check(step == 8, f"dense maps' default aoa_step is {step}, not 8")
+    coarse = -(-cells // step)
+    checks.check(np.allclose(info["geoTransform"], [expected_gt[0], expected_gt[1] * step, 0.0, expected_gt[3], 0.0,
+                                                    expected_gt[5] * step], rtol=0, atol=1e-6) and
                  info["size"] == [coarse, coarse], f"dense aoa.tif grid {info['geoTransform']} {info['size']}")
     dense_aoa = read(dense_aoa_path, 1)
     worst = 0.0
     for i in range(coarse):
         for j in range(coarse):
-            wr, wc = min(4 * i + 2, cells - 1), min(4 * j + 2, cells - 1)
+            wr, wc = min(step * i + step // 2, cells - 1), min(step * j + step // 2, cells - 1)
             if classes[wr, wc] != 255:
                 worst = max(worst, abs(dense_aoa[i, j] - aoa_band[wr, wc]))
     checks.check(worst < 1e-4, f"dense aoa.tif differs from the exact windows' index by {worst:.2e}")
@@ -283,5 +287,80 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     os.makedirs(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic"), exist_ok=True)
     if image is not None:
         gdal.Translate(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic", "quicklook.png"), image)
+
+    # Study arms and ensembles. A real study (one arm, two seeds, budgets 3 and all, fold 0;
+    # a random forest baseline; two epochs, so that the seeds' probabilities are not all 0 or 1): arm "scratch" maps as the ensemble of its two seeds at the
+    # largest budget (all) and the lowest fold (0), as map_settings.hpp documents.
+    with open(os.path.join(work, "study.yaml"), "w") as f:
+        f.write("config: study\noutput: studies/s\nfinetune: finetune.yaml\narms: [{name: scratch, train: {epochs: 2}}]\n"
+                "baselines: [random_forest]\nseeds: [1, 2]\nbudgets: [3, all]\nfolds: [0]\nparallel: 1\n")
+    tinct(["study", "study.yaml"], work)
+    seed_runs = [os.path.join("studies", "s", "runs", "scratch", "budget-all", f"seed-{s}", "fold-0") for s in (1, 2)]
+    def map_config(name, source, extra=""):
+        with open(os.path.join(work, name + ".yaml"), "w") as f:
+            f.write(f"config: map\n{source}\noutput: maps/{name}\nstride: {STRIDE}\nmode: exact\n"
+                    f"probabilities: float32\nsensor: {profile}\n{extra}"
+                    f"scenes: [{{id: b, path: b.tif, date: 2026-06-14, mask: {{path: b-mask.tif, drop: [9]}}}}]\n")
+        return name + ".yaml"
+
+    def probabilities_of(name):
+        path = os.path.join(work, "maps", name, "b", "probabilities.tif")
+        return np.stack([read(path, k) for k in (1, 2)]).astype(np.float64)
+
+    for i, run in enumerate(seed_runs):
+        tinct(["map", map_config(f"seed{i + 1}", f"run: {run}")], work)
+    tinct(["map", map_config("arm", "study: studies/s\narm: scratch")], work)
+    arm_info = gdalinfo(os.path.join(work, "maps", "arm", "b", "probabilities.tif"))["metadata"][""]
+    members = [arm_info.get(f"TINCT_MEMBER_{i}", "").split(";")[0] for i in (1, 2, 3)]
+    expected_members = [r.replace(os.sep, "/") for r in seed_runs]
+    checks.check(all(m.endswith("/" + e) for m, e in zip(members, expected_members)) and members[2] == "",
+                 f"arm scratch resolved to {members}, expected {expected_members}")
+    mean = (probabilities_of("seed1") + probabilities_of("seed2")) / 2
+    ensemble = probabilities_of("arm")
+    data = ~np.isnan(mean[0])
+    worst = np.abs(ensemble[:, data] - mean[:, data]).max()
+    print(f"ensemble of two seeds vs the mean of their single maps: max |dp| {worst:.2e} over {data.sum()} cells")
+    checks.check(data.sum() > 50 and worst < 1e-5, f"the ensemble is not the mean of its members: {worst:.2e}")
+    checks.check((np.isnan(ensemble[0]) == ~data).all(), "the ensemble's nodata differs from its members'")
+    uncertainty = gdal.Open(os.path.join(work, "maps", "arm", "b", "uncertainty.tif"))
+    checks.check(uncertainty.RasterCount == 2 and "disagreement" in uncertainty.GetRasterBand(2).GetDescription(),
+                 "an ensemble's uncertainty.tif has no disagreement band")
+    disagreement = uncertainty.GetRasterBand(2).ReadAsArray()[data]
+    # Mutual information over ln K in numpy from the members' own maps (each member's
+    # normalised entropy, the entropy of their mean).
+    def entropy(p):
+        return -(np.where(p > 0, p * np.log(np.where(p > 0, p, 1)), 0)).sum(axis=0) / np.log(2)
+    expected = entropy(mean[:, data]) - (entropy(probabilities_of("seed1")[:, data]) +
+                                         entropy(probabilities_of("seed2")[:, data])) / 2
+    checks.check(np.abs(disagreement - np.maximum(expected, 0)).max() < 1e-4,
+                 f"disagreement differs from numpy's mutual information by {np.abs(disagreement - expected).max():.2e}")
+    print(f"two seeds' disagreement: max {disagreement.max():.4f}, mean {disagreement.mean():.4f}")
+    checks.check(disagreement.max() > 0 and disagreement.min() >= 0 and disagreement.max() <= 1,
+                 "two seeds' disagreement is not in (0, 1] anywhere")
+
+    # Budget and fold chosen, then refusals: an unknown arm lists the arms, a baseline arm
+    # holds no model, an absent budget lists the budgets.
+    tinct(["map", "studies/s", "b.tif", "--arm", "scratch", "--budget", "3", "--out", "maps/short-arm"], work)
+    short_info = gdalinfo(os.path.join(work, "maps", "short-arm", "b", "classes.tif"))["metadata"][""]
+    checks.check(short_info.get("TINCT_MEMBER_2", "").split(";")[0].endswith("/studies/s/runs/scratch/budget-3/seed-2/fold-0"),
+                 f"the short form's arm at budget 3: {short_info.get('TINCT_MEMBER_2')}")
+    tinct(["check", map_config("arm3", "study: studies/s\narm: scratch\nbudget: 3\nfold: 0")], work)
+    for source, expected_text in (("study: studies/s\narm: scrach", "its arms: random_forest, scratch"),
+                                  ("study: studies/s\narm: random_forest", "holds no fine-tuned model.pt"),
+                                  ("study: studies/s\narm: scratch\nbudget: 7", "its budgets: 3, all")):
+        refused = subprocess.run([TINCT, "map", map_config("refused", source)], capture_output=True, text=True,
+                                 cwd=work)
+        checks.check(refused.returncode == 2 and expected_text in refused.stderr,
+                     f"{source!r}: exit {refused.returncode}, {refused.stderr[-400:]}")
+
+    # An ensemble of one run with itself (a copy of its folder): the mean is that run's map
+    # and the members' disagreement is 0 everywhere.
+    shutil.copytree(os.path.join(work, seed_runs[0]), os.path.join(work, "runs", "seed1-copy"))
+    tinct(["map", map_config("same", f"runs: [{seed_runs[0]}, runs/seed1-copy]")], work)
+    same_file = gdal.Open(os.path.join(work, "maps", "same", "b", "uncertainty.tif"))
+    same = same_file.GetRasterBand(2).ReadAsArray()
+    checks.check(np.nanmax(np.abs(same)) == 0.0, f"one run twice disagrees by {np.nanmax(np.abs(same))}")
+    checks.check(np.abs(probabilities_of("same")[:, data] - probabilities_of("seed1")[:, data]).max() < 1e-6,
+                 "one run twice differs from the run alone")
 
 checks.finish()

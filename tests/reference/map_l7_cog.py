@@ -79,7 +79,7 @@ train: {epochs: 8, batch: 16, lr: 0.002, seed: 4, patience: 8}
         info = json.loads(subprocess.run(["gdalinfo", "-json", path], capture_output=True, text=True,
                                          check=True).stdout)
         checks.check(info["coordinateSystem"]["wkt"] == scene_wkt, f"{product}.tif: CRS differs from the scene's")
-        step = 4 if product == "aoa" else 1  # dense mode: the AOA from exact windows every 4th window
+        step = 8 if product == "aoa" else 1  # dense mode: the AOA from exact windows every 8th window
         checks.check(abs(info["geoTransform"][1] - 28.5 * 16 * step) < 1e-9,
                      f"{product}.tif: pixel size is not 28.5 x 16 x {step}")
 

@@ -1,4 +1,5 @@
-// tinct map CONFIG | tinct map RUN RASTER --out DIR: a finetune run over whole scenes.
+// tinct map CONFIG | tinct map RUN RASTER --out DIR | tinct map STUDY RASTER --arm ARM --out DIR:
+// a finetune run, or a study arm's seeds as an ensemble, over whole scenes.
 #include "cli/commands.hpp"
 #include "mapping/map_job.hpp"
 #include "mapping/map_settings.hpp"
@@ -12,6 +13,8 @@ struct MapOptions {
   std::string out;
   std::string points;
   std::string mode;
+  std::string arm, budget;
+  int fold = -1;
   int stride = 0;
   bool force = false;
 };
@@ -19,7 +22,20 @@ struct MapOptions {
 static MapSettings settings_from(const MapOptions& options) {
   if (options.inputs.size() == 2) {
     if (options.out.empty()) fail_usage("tinct map RUN RASTER needs --out DIR (the folder to write)");
-    return map_settings_for_raster(options.inputs[0], options.inputs[1], options.out);
+    std::optional<StudyArmChoice> arm;
+    if (!options.arm.empty()) {
+      arm = StudyArmChoice{options.inputs[0], options.arm, {}, {}};
+      if (!options.budget.empty()) arm->budget = options.budget;
+      if (options.fold >= 0) arm->fold = options.fold;
+    } else if (!options.budget.empty() || options.fold >= 0) {
+      fail_usage("--budget and --fold choose a study arm's runs: give --arm ARM too (the first input is then the "
+                 "study folder)");
+    }
+    return map_settings_for_raster(options.inputs[0], options.inputs[1], options.out, arm);
+  }
+  if (!options.arm.empty() || !options.budget.empty() || options.fold >= 0) {
+    fail_usage("--arm, --budget and --fold belong to the short form (tinct map STUDY RASTER --arm ARM); in a map "
+               "config write study:, arm:, budget: and fold:");
   }
   const ConfigNode root = ConfigNode::load(options.inputs[0]);
   root.choice("config", {"map"});
@@ -48,8 +64,8 @@ static void run_map_command(const MapOptions& options, const GlobalOptions& glob
 CommandRun setup_map(CLI::App& command, const GlobalOptions& global) {
   auto options = std::make_shared<MapOptions>();
   command.add_option("inputs", options->inputs,
-                     "A map config (YAML, config: map), or a finetune run folder and a raster whose bands are the "
-                     "run's inputs in order")
+                     "A map config (YAML, config: map), or a finetune run folder (a study folder with --arm) and a "
+                     "raster whose bands are the run's inputs in order")
       ->required()
       ->expected(1, 2);
   command.add_option("--out", options->out, "Folder to write (default: the config's output)");
@@ -57,6 +73,11 @@ CommandRun setup_map(CLI::App& command, const GlobalOptions& global) {
                      "Predict at these points instead (CSV with x,y or lon,lat, or any OGR point layer)");
   command.add_option("--mode", options->mode, "exact (each window alone) or dense (encoder over tiles)")
       ->check(CLI::IsMember({"exact", "dense"}));
+  command.add_option("--arm", options->arm,
+                     "Short form: the first input is a study folder; map this arm's seeds as an ensemble (largest "
+                     "budget, lowest fold unless --budget, --fold)");
+  command.add_option("--budget", options->budget, "With --arm: the budget's folder name (all, 15, ...)");
+  command.add_option("--fold", options->fold, "With --arm: the fold")->check(CLI::NonNegativeNumber);
   command.add_option("--stride", options->stride, "Pixels between window centres")->check(CLI::PositiveNumber);
   command.add_flag("--force", options->force, "Replace an existing output folder");
   return [options, &global] { run_map_command(*options, global); };

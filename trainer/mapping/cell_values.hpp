@@ -1,6 +1,7 @@
 // What a map shows for one window from its logits and features: calibrated class
 // probabilities (softmax of logits / T), the most probable class, the normalised entropy
-// (entropy / ln K: 0 certain, 1 uniform) and the area-of-applicability index and mask.
+// (entropy / ln K: 0 certain, 1 uniform), for an ensemble the members' disagreement
+// (map_model.hpp) and the area-of-applicability index and mask.
 #pragma once
 
 #include <cstdint>
@@ -13,6 +14,7 @@ struct CellValues {
   std::vector<float> probabilities;
   int predicted = 0;
   float uncertainty = 0;
+  float disagreement = 0;
   float aoa_index = 0;
   bool inside = true;
 };

@@ -6,7 +6,7 @@
 #include "mapping/point_predictions.hpp"
 #include "mapping/run_evidence.hpp"
 #include "mapping/scene_mapper.hpp"
-#include "mapping/window_model.hpp"
+#include "mapping/map_model.hpp"
 #include "raster/target_grid.hpp"
 #include "raster/vrt_mosaic.hpp"
 #include "runs/metrics_log.hpp"
@@ -29,23 +29,38 @@ std::string run_config_hash(const fs::path& run) {
   return "unknown";
 }
 
-std::map<std::string, std::string> provenance(const MapSettings& s, const RunEvidence& evidence) {
+std::string calibration_text(const RunEvidence& evidence) {
+  return evidence.calibrated ? "temperature " + metric_text(evidence.temperature) + " fitted on the run's validation chips"
+                             : "none (uncalibrated softmax)";
+}
+
+std::map<std::string, std::string> provenance(const MapSettings& s, const std::vector<RunEvidence>& members) {
+  const RunEvidence& evidence = members.front();
   std::map<std::string, std::string> m;
   m["TINCT_CAUTION"] = kMapCaution;
   m["TINCT_RUN"] = s.run.lexically_normal().filename().string();
   m["TINCT_RUN_CONFIG_HASH"] = run_config_hash(s.run);
+  if (s.runs.size() > 1) {
+    m["TINCT_ENSEMBLE"] = s.source + "; class probabilities: the mean of the members' calibrated probabilities; "
+                          "uncertainty band 2: the members' disagreement (mutual information / ln K)";
+    for (std::size_t i = 0; i < s.runs.size(); ++i) {
+      const std::string key = "TINCT_MEMBER_" + std::to_string(i + 1);
+      m[key] = fs::absolute(s.runs[i]).lexically_normal().string() + "; config hash " + run_config_hash(s.runs[i]) +
+               "; calibration " + calibration_text(members[i]);
+    }
+  }
   m["TINCT_MAP_CONFIG_HASH"] = s.config_hash;
   m["TINCT_VERSION"] = tinct_version();
   m["TINCT_MODE"] = to_string(s.mode);
   m["TINCT_STRIDE_PX"] = std::to_string(s.stride);
   m["TINCT_WINDOW_PX"] = std::to_string(s.inputs.chip_size);
   m["TINCT_MIN_VALID"] = metric_text(s.min_valid);
-  m["TINCT_CALIBRATION"] = evidence.calibrated ? "temperature " + metric_text(evidence.temperature) +
-                                                     " fitted on the run's validation chips"
-                                               : "none (uncalibrated softmax)";
+  m["TINCT_CALIBRATION"] = s.runs.size() > 1 ? "each member by its own temperature (TINCT_MEMBER_*)"
+                                              : calibration_text(evidence);
   if (evidence.applicability) {
     m["TINCT_AOA"] = "dissimilarity index over unweighted standardised pooled encoder features; threshold " +
-                     metric_text(evidence.applicability->threshold);
+                     metric_text(evidence.applicability->threshold) +
+                     (s.runs.size() > 1 ? "; of the first member's encoder and training chips" : "");
   }
   return m;
 }
@@ -70,14 +85,24 @@ void build_mosaics(const fs::path& folder, const std::vector<std::string>& scene
 }  // namespace
 
 void run_map(const MapSettings& s, const MapJobOptions& options) {
-  WindowModel model(s.run / "model.pt");
-  log::info("map: run " + s.run.string() + ", " + std::to_string(s.inputs.chip_size) + " px windows at stride " +
+  MapModel model(s.runs);
+  log::info("map: " + s.source + ", " + std::to_string(s.inputs.chip_size) + " px windows at stride " +
             std::to_string(s.stride) + " px, " + to_string(s.mode) + " mode, classes " +
             std::to_string(model.classes().size()));
-  const RunEvidence evidence =
-      s.aoa ? gather_run_evidence(s.run, model, true, s.batch, options.threads) : RunEvidence{};
+  // Each member calibrated on its own validation chips; the area of applicability is the
+  // first member's (its encoder's features are the ones the map keeps).
+  std::vector<RunEvidence> members;
+  std::vector<double> temperatures;
+  for (std::size_t i = 0; i < s.runs.size(); ++i) {
+    if (s.runs.size() > 1) log::info("map: member " + std::to_string(i + 1) + ": " + s.runs[i].string());
+    members.push_back(s.aoa ? gather_run_evidence(s.runs[i], model.member(i), i == 0, s.batch, options.threads)
+                            : RunEvidence{});
+    temperatures.push_back(members.back().temperature);
+  }
+  model.set_temperatures(temperatures);
   if (!s.aoa) log::warning("map: aoa: false: no area of applicability and uncalibrated probabilities");
-  MapContext context{s, model, evidence, provenance(s, evidence), options.threads};
+  const RunEvidence& evidence = members.front();
+  MapContext context{s, model, evidence, provenance(s, members), options.threads};
 
   PartialFolder out(s.output, options.replace);
   write_applicability_files(out.path(), evidence);

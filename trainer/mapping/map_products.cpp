@@ -55,6 +55,12 @@ std::unique_ptr<GeoTiffWriter> classes_writer(const fs::path& folder, const Prod
 std::unique_ptr<GeoTiffWriter> uncertainty_writer(const fs::path& folder, const ProductSpec& p) {
   GeoTiffSpec spec = base_spec(p, PixelType::float32, "normalised entropy of the class probabilities");
   spec.bands.push_back({"normalised entropy", {{"range", "0 (certain) to 1 (all classes equally likely)"}}});
+  if (p.ensemble) {
+    spec.bands.push_back({"members' disagreement: mutual information between class and member / ln K",
+                          {{"definition", "entropy of the mean probabilities minus the mean of the members' entropies, "
+                                          "over ln K"},
+                           {"range", "0 (members agree exactly) to 1"}}});
+  }
   spec.nodata = std::nan("");
   return std::make_unique<GeoTiffWriter>(folder / "uncertainty.tif", spec);
 }
@@ -111,9 +117,11 @@ void MapProducts::write_row(const std::vector<CellValues>& cells) {
     if (cells[i].valid) bytes_[i] = static_cast<std::uint8_t>(cells[i].predicted);
   }
   classes_->write_rows(bytes_.data(), 1);
-  floats_.assign(n, kNaN);
+  floats_.assign(spec_.ensemble ? 2 * n : n, kNaN);
   for (std::size_t i = 0; i < n; ++i) {
-    if (cells[i].valid) floats_[i] = cells[i].uncertainty;
+    if (!cells[i].valid) continue;
+    floats_[i] = cells[i].uncertainty;
+    if (spec_.ensemble) floats_[n + i] = cells[i].disagreement;
   }
   uncertainty_->write_rows(floats_.data(), 1);
 }

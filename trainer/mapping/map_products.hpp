@@ -1,6 +1,7 @@
 // The GeoTIFFs of one scene's map, written row by row (one row of cells = one row of
 // windows) into COGs: probabilities.tif (one band per class), classes.tif (Byte, colour
-// table), uncertainty.tif (normalised entropy) and aoa.tif (index band, inside/outside
+// table), uncertainty.tif (normalised entropy; for an ensemble a second band, the members'
+// disagreement) and aoa.tif (index band, inside/outside
 // mask band), all on the map grid in the scene's CRS, nodata where a window has too few
 // valid pixels, with the caution and the run's provenance in the metadata.
 #pragma once
@@ -26,6 +27,7 @@ struct ProductSpec {
   bool aoa = true;
   int aoa_step = 1;  // aoa.tif's cells hold aoa_step x aoa_step cells of the others
   std::map<std::string, std::string> metadata;  // caution and provenance
+  bool ensemble = false;  // uncertainty.tif gets a second band, the members' disagreement
 };
 
 // aoa.tif's grid: ceil(columns / step) x ceil(rows / step) cells, same origin, pixels step

@@ -81,7 +81,7 @@ void read_options(const ConfigNode& root, MapSettings& s) {
                                                                              : ProbabilityType::float32;
   s.min_valid = root.number("min_valid", 0.5, 0.0, 1.0);
   s.aoa = root.flag("aoa", true);
-  s.aoa_step = static_cast<int>(root.integer("aoa_step", 4, 1, 32));
+  s.aoa_step = static_cast<int>(root.integer("aoa_step", 8, 1, 32));
   if (32 % s.aoa_step != 0) root.fail("aoa_step", "must divide 32: 1, 2, 4, 8, 16 or 32");
   s.batch = static_cast<int>(root.integer("batch", 32, 1, 4096));
 }
@@ -97,7 +97,59 @@ void check_scene_bands(const ConfigNode& item, const SceneSpec& scene, const Run
   }
 }
 
+// Sets the runs and the run inputs (from the first: MapModel checks the others agree).
+void take_runs(std::vector<fs::path> runs, const std::string& source, MapSettings& s) {
+  for (const fs::path& run : runs) {
+    if (!fs::exists(run / "model.pt")) fail_usage("map: " + run.string() + " holds no model.pt; give a finished finetune run");
+  }
+  s.runs = std::move(runs);
+  s.run = s.runs.front();
+  s.source = source;
+  s.inputs = read_run_inputs(s.run);
+}
+
+std::string arm_source(const StudyArmChoice& c, const StudyArmRuns& r) {
+  return "study " + c.study.string() + ", arm " + c.arm + ", budget " + r.budget + ", fold " + std::to_string(r.fold) +
+         ": " + std::to_string(r.runs.size()) + " seed" + (r.runs.size() == 1 ? "" : "s");
+}
+
+void read_model_source(const ConfigNode& root, MapSettings& s) {
+  const int given = (root.has("run") ? 1 : 0) + (root.has("runs") ? 1 : 0) + (root.has("study") ? 1 : 0);
+  if (given != 1) {
+    root.fail(given == 0 ? "run" : "", "give exactly one of run: (a finetune run), runs: (finetune runs to "
+                                           "average as an ensemble) or study: with arm: (a study arm's seeds)");
+  }
+  if (root.has("run")) {
+    const fs::path run = root.path("run", true);
+    take_runs({run}, "run " + run.string(), s);
+  } else if (root.has("runs")) {
+    std::vector<fs::path> runs;
+    for (const std::string& text : root.texts("runs")) {
+      const fs::path run = fs::path(text).is_relative() ? (root.folder() / text).lexically_normal() : fs::path(text);
+      if (std::find(runs.begin(), runs.end(), run) != runs.end()) root.fail("runs", run.string() + " is listed twice");
+      runs.push_back(run);
+    }
+    if (runs.empty()) root.fail("runs", "list at least one finetune run");
+    take_runs(runs, "ensemble of " + std::to_string(runs.size()) + " runs", s);
+  } else {
+    StudyArmChoice choice;
+    choice.study = root.path("study", true);
+    choice.arm = root.text("arm");
+    if (root.has("budget")) choice.budget = root.text("budget");
+    if (root.has("fold")) choice.fold = static_cast<int>(root.integer("fold", 0, 0, 1000));
+    const StudyArmRuns arm = resolve_study_arm(choice);
+    take_runs(arm.runs, arm_source(choice, arm), s);
+  }
+}
+
 }  // namespace
+
+std::string MapSettings::model_name() const {
+  if (runs.size() <= 1) return run.filename().string();
+  const auto arm = source.find(", arm ");
+  if (arm == std::string::npos) return source;
+  return source.substr(arm + 2);  // "arm A, budget B, fold F: N seeds"
+}
 
 RunInputs read_run_inputs(const fs::path& run) {
   RunInputs inputs;
@@ -114,11 +166,7 @@ RunInputs read_run_inputs(const fs::path& run) {
 
 MapSettings read_map_config(const ConfigNode& root) {
   MapSettings s;
-  s.run = root.path("run", true);
-  if (!fs::exists(s.run / "model.pt")) {
-    root.fail("run", s.run.string() + " holds no model.pt; give a finished finetune run");
-  }
-  s.inputs = read_run_inputs(s.run);
+  read_model_source(root, s);
   s.output = root.path("output", false);
   read_options(root, s);
   s.sensor_given = root.has("sensor");
@@ -140,11 +188,17 @@ MapSettings read_map_config(const ConfigNode& root) {
   return s;
 }
 
-MapSettings map_settings_for_raster(const fs::path& run, const fs::path& raster, const fs::path& output) {
+MapSettings map_settings_for_raster(const fs::path& run, const fs::path& raster, const fs::path& output,
+                                    const std::optional<StudyArmChoice>& arm) {
   MapSettings s;
-  s.run = run;
-  if (!fs::exists(run / "model.pt")) fail_usage(run.string() + " holds no model.pt; give a finished finetune run");
-  s.inputs = read_run_inputs(run);
+  if (arm) {
+    StudyArmChoice choice = *arm;
+    choice.study = run;
+    const StudyArmRuns runs = resolve_study_arm(choice);
+    take_runs(runs.runs, arm_source(choice, runs), s);
+  } else {
+    take_runs({run}, "run " + run.string(), s);
+  }
   s.output = output;
   const std::string text = "stride: " + std::to_string(std::max(1, s.inputs.chip_size / 4)) + "\n";
   const ConfigNode defaults = ConfigNode::from_text(text, "defaults", fs::current_path());
@@ -165,7 +219,7 @@ MapSettings map_settings_for_raster(const fs::path& run, const fs::path& raster,
   }
   s.scenes.push_back(scene);
   s.resolution = s.inputs.pixel_size > 0 ? s.inputs.pixel_size : std::abs(stack.geotransform()[1]);
-  s.config_hash = sha256_hex(run.string() + "\n" + raster.string());
+  s.config_hash = sha256_hex(s.source + "\n" + raster.string());
   return s;
 }
 

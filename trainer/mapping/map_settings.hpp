@@ -1,19 +1,23 @@
 // The settings of `tinct map`, from a YAML config (config: map) or from the short form
-// `tinct map RUN RASTER --out DIR`. Required: run, output, scenes (as in label configs).
+// `tinct map RUN RASTER --out DIR`. Required: output, scenes (as in label configs) and one
+// of run: (a finetune run), runs: (an ensemble of runs) or study: with arm: (optional
+// budget:, fold:; the rule in study_arm_runs.hpp).
 // Defaults: stride chip size / 4, mode dense where the stride is a multiple of the
 // encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
 // sensor none (scenes are read with a profile made from the run's bands, and stored
 // values become reflectance with the scale and offset of the run's label store),
-// grid resolution the run's store pixel size, aoa_step 4 (dense mode only).
+// grid resolution the run's store pixel size, aoa_step 8 (dense mode only).
 #pragma once
 
 #include <filesystem>
+#include <optional>
 #include <string>
 #include <vector>
 
 #include "raster/resampling.hpp"
 #include "raster/scene_spec.hpp"
 #include "raster/sensor_profile.hpp"
+#include "mapping/study_arm_runs.hpp"
 #include "util/config_node.hpp"
 
 namespace tinct {
@@ -33,7 +37,9 @@ struct RunInputs {
 };
 
 struct MapSettings {
-  std::filesystem::path run;
+  std::filesystem::path run;                // the first of runs
+  std::vector<std::filesystem::path> runs;  // several: an ensemble
+  std::string source;                       // where the runs came from, in words
   std::filesystem::path output;
   int stride = 0;
   MapMode mode = MapMode::dense;
@@ -44,7 +50,9 @@ struct MapSettings {
   // those of exact windows (the training chips' are: dense features carry context from beyond
   // the window and lie elsewhere in feature space), so dense maps compute it on exact windows
   // every aoa_step windows, aoa.tif on a grid aoa_step times coarser. Exact maps use 1.
-  int aoa_step = 4;
+  // Those windows cost a whole exact pass over the scene at step 4 (64 px windows every
+  // 64 px), as much as the dense pass itself; step 8 costs a quarter of that (the bench).
+  int aoa_step = 8;
   int applicability_step() const { return mode == MapMode::dense ? aoa_step : 1; }
   int batch = 32;
   SensorProfile profile;      // reads the scenes
@@ -54,6 +62,9 @@ struct MapSettings {
   AlignSettings align;
   RunInputs inputs;
   std::string config_hash;
+
+  // "RUN", "ensemble of N runs" or "arm A, budget B, fold F: N seeds", for titles.
+  std::string model_name() const;
 };
 
 // Reads the run's model description and store manifests (the run's config.resolved.yaml).
@@ -62,9 +73,10 @@ RunInputs read_run_inputs(const std::filesystem::path& run);
 // `root` is the config's top level; calls finish() on every section it reads.
 MapSettings read_map_config(const ConfigNode& root);
 
-// The short form: one raster whose bands are the run's inputs in order.
+// The short form: one raster whose bands are the run's inputs in order. With an arm,
+// `run` is a study folder.
 MapSettings map_settings_for_raster(const std::filesystem::path& run, const std::filesystem::path& raster,
-                                    const std::filesystem::path& output);
+                                    const std::filesystem::path& output, const std::optional<StudyArmChoice>& arm = {});
 
 std::string to_string(MapMode mode);
 

@@ -111,12 +111,12 @@ class PointMapper {
         result.valid_fraction = fraction;
       }
       if (fraction < c_.settings.min_valid) continue;
-      std::vector<float> logits(c_.model.classes().size()), features(c_.model.feature_count());
-      c_.model.exact(window_.data(), 1, logits.data(), features.data());
+      WindowOutputs outputs;
+      c_.model.exact(window_.data(), 1, outputs);
       std::vector<CellValues> cells(1);
       cells[0].valid = true;
-      fill_cells(logits.data(), features.data(), static_cast<int>(logits.size()), c_.model.feature_count(),
-                 c_.evidence, c_.threads, true, cells);
+      fill_cells(outputs, static_cast<int>(c_.model.classes().size()), c_.model.feature_count(), c_.evidence,
+                 c_.threads, true, cells);
       result.cell = cells[0];
       result.scene = scene->spec().id;
       result.valid_fraction = fraction;
@@ -175,11 +175,14 @@ void predict_points(const fs::path& file, const MapContext& context, const fs::p
   std::vector<std::string> text_fields{"id", "scene", "predicted"};
   std::vector<std::string> number_fields{"valid_fraction"};
   for (const auto& name : classes) number_fields.push_back("p_" + name);
-  number_fields.insert(number_fields.end(), {"uncertainty", "aoa_index", "inside_aoa"});
+  const bool ensemble = context.model.is_ensemble();
+  number_fields.push_back("uncertainty");
+  if (ensemble) number_fields.push_back("disagreement");
+  number_fields.insert(number_fields.end(), {"aoa_index", "inside_aoa"});
 
   std::string csv = "id,x,y,scene,valid_fraction,predicted";
   for (const auto& name : classes) csv += ",p_" + csv_field(name);
-  csv += ",uncertainty,aoa_index,inside_aoa\n";
+  csv += std::string(",uncertainty") + (ensemble ? ",disagreement" : "") + ",aoa_index,inside_aoa\n";
   std::vector<PackagePoint> package;
   std::int64_t mapped = 0;
   const double nan = std::numeric_limits<double>::quiet_NaN();
@@ -195,9 +198,14 @@ void predict_points(const fs::path& file, const MapContext& context, const fs::p
       csv += "," + (ok ? metric_text(r.cell.probabilities[k]) : "");
     }
     const bool aoa = ok && context.evidence.applicability.has_value();
-    p.numbers.insert(p.numbers.end(), {ok ? r.cell.uncertainty : nan, aoa ? r.cell.aoa_index : nan,
-                                       aoa ? (r.cell.inside ? 1.0 : 0.0) : nan});
-    csv += "," + (ok ? metric_text(r.cell.uncertainty) : "") + "," + (aoa ? metric_text(r.cell.aoa_index) : "") +
+    p.numbers.push_back(ok ? r.cell.uncertainty : nan);
+    csv += "," + (ok ? metric_text(r.cell.uncertainty) : "");
+    if (ensemble) {
+      p.numbers.push_back(ok ? r.cell.disagreement : nan);
+      csv += "," + (ok ? metric_text(r.cell.disagreement) : "");
+    }
+    p.numbers.insert(p.numbers.end(), {aoa ? r.cell.aoa_index : nan, aoa ? (r.cell.inside ? 1.0 : 0.0) : nan});
+    csv += "," + (aoa ? metric_text(r.cell.aoa_index) : "") +
            "," + (aoa ? std::string(r.cell.inside ? "1" : "0") : "") + "\n";
     package.push_back(std::move(p));
   }

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <chrono>
+#include <cstdio>
 
 #include "mapping/map_products.hpp"
 #include "mapping/quicklook.hpp"
@@ -21,38 +22,29 @@ constexpr int kStripWindowRows = 32;       // at most; a multiple of every aoa_s
 constexpr double kStripBytes = 64.0 * 1024 * 1024;  // scene values held at once
 constexpr int kTileWindowColumns = 24;  // tile activations stay well within the memory goal
 
-struct StripOutputs {
-  std::vector<float> logits, features;  // (rows * columns, K), (rows * columns, F)
-};
-
-void run_dense(WindowModel& model, const SceneStrip& strip, const WindowLayout& layout, int rows,
-               StripOutputs& out) {
-  const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
-  std::vector<float> tile, logits, features;
+void run_dense(MapModel& model, const SceneStrip& strip, const WindowLayout& layout, int rows, WindowOutputs& out) {
+  std::vector<float> tile;
+  WindowOutputs part;
   for (int c0 = 0; c0 < layout.columns; c0 += kTileWindowColumns) {
     const int columns = std::min(kTileWindowColumns, layout.columns - c0);
     const int width = (columns - 1) * layout.stride + layout.size;
     tile.resize(static_cast<std::size_t>(strip.bands()) * strip.height() * width);
     strip.copy(c0 * layout.stride, 0, width, strip.height(), tile.data());
-    logits.resize(static_cast<std::size_t>(rows) * columns * k);
-    features.resize(static_cast<std::size_t>(rows) * columns * f);
-    model.dense(tile.data(), strip.height(), width, layout.stride, logits.data(), features.data());
+    model.dense(tile.data(), strip.height(), width, layout.stride, part);
     for (int r = 0; r < rows; ++r) {
       for (int c = 0; c < columns; ++c) {
-        const std::size_t from = static_cast<std::size_t>(r) * columns + c;
-        const std::size_t to = static_cast<std::size_t>(r) * layout.columns + c0 + c;
-        std::copy_n(logits.begin() + from * k, k, out.logits.begin() + to * k);
-        std::copy_n(features.begin() + from * f, f, out.features.begin() + to * f);
+        out.copy_window(part, static_cast<std::size_t>(r) * columns + c,
+                        static_cast<std::size_t>(r) * layout.columns + c0 + c);
       }
     }
   }
 }
 
-void run_exact(WindowModel& model, const SceneStrip& strip, const WindowLayout& layout,
-               const std::vector<std::size_t>& windows, int batch, StripOutputs& out) {
-  const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
+void run_exact(MapModel& model, const SceneStrip& strip, const WindowLayout& layout,
+               const std::vector<std::size_t>& windows, int batch, WindowOutputs& out) {
   const std::size_t window_values = static_cast<std::size_t>(strip.bands()) * layout.size * layout.size;
-  std::vector<float> inputs, logits, features;
+  std::vector<float> inputs;
+  WindowOutputs part;
   for (std::size_t start = 0; start < windows.size(); start += static_cast<std::size_t>(batch)) {
     const std::size_t count = std::min(windows.size() - start, static_cast<std::size_t>(batch));
     inputs.resize(count * window_values);
@@ -61,20 +53,15 @@ void run_exact(WindowModel& model, const SceneStrip& strip, const WindowLayout& 
       const int row = w / layout.columns, col = w % layout.columns;
       strip.copy(col * layout.stride, row * layout.stride, layout.size, layout.size, inputs.data() + i * window_values);
     }
-    logits.resize(count * k);
-    features.resize(count * f);
-    model.exact(inputs.data(), static_cast<int>(count), logits.data(), features.data());
-    for (std::size_t i = 0; i < count; ++i) {
-      std::copy_n(logits.begin() + i * k, k, out.logits.begin() + windows[start + i] * k);
-      std::copy_n(features.begin() + i * f, f, out.features.begin() + windows[start + i] * f);
-    }
+    model.exact(inputs.data(), static_cast<int>(count), part);
+    for (std::size_t i = 0; i < count; ++i) out.copy_window(part, i, windows[start + i]);
   }
 }
 
 // aoa.tif's rows whose cells lie in this strip, from exact windows (step > 1: the window in
 // the middle of each coarse cell; step 1: the cells themselves); fine cells take their coarse
 // cell's index and mask.
-std::vector<std::vector<CellValues>> applicability_rows(WindowModel& model, const SceneStrip& strip,
+std::vector<std::vector<CellValues>> applicability_rows(MapModel& model, const SceneStrip& strip,
                                                         const WindowLayout& layout, int first, int rows, int step,
                                                         const MapContext& context, std::vector<CellValues>& cells) {
   const auto columns = static_cast<std::size_t>(layout.columns);
@@ -95,9 +82,8 @@ std::vector<std::vector<CellValues>> applicability_rows(WindowModel& model, cons
       if (cells[w].valid) valid.push_back(w);
     }
     const std::size_t f = static_cast<std::size_t>(model.feature_count());
-    StripOutputs exact;
-    exact.logits.assign(cells.size() * model.classes().size(), 0.0f);
-    exact.features.assign(cells.size() * f, 0.0f);
+    WindowOutputs exact;
+    exact.assign_zero(cells.size(), model.classes().size(), f);
     run_exact(model, strip, layout, valid, context.settings.batch, exact);
     std::vector<float> features(chosen.size() * f);
     for (std::size_t c = 0; c < chosen.size(); ++c) {
@@ -127,6 +113,29 @@ int strip_window_rows(const WindowLayout& layout, int bands, int step) {
   return std::max(step, std::min(kStripWindowRows, fit) / step * step);
 }
 
+// Seconds spent per stage of a scene's loop, for the log (where a map's time goes).
+class StageClock {
+ public:
+  void start() { mark_ = std::chrono::steady_clock::now(); }
+  void stop(double& total) {
+    total += std::chrono::duration<double>(std::chrono::steady_clock::now() - mark_).count();
+  }
+
+ private:
+  std::chrono::steady_clock::time_point mark_;
+};
+
+struct StageSeconds {
+  double read = 0, model = 0, cells = 0, applicability = 0, write = 0;
+
+  std::string text() const {
+    char line[160];
+    std::snprintf(line, sizeof(line), "reading %.1f s, model %.1f s, cells %.1f s, applicability windows %.1f s, "
+                  "writing %.1f s", read, model, cells, applicability, write);
+    return line;
+  }
+};
+
 std::string crs_units(const std::string& wkt) { return crs_is_geographic(wkt) ? "degree" : "m"; }
 
 }  // namespace
@@ -146,7 +155,7 @@ InputEncoding input_encoding(const MapSettings& settings, const BandNormalisatio
 SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, const fs::path& folder) {
   const auto start = std::chrono::steady_clock::now();
   const MapSettings& s = context.settings;
-  WindowModel& model = context.model;
+  MapModel& model = context.model;
   const Scene scene(spec, s.profile, s.inputs.bands, s.resolution, s.align);
   for (const auto& note : scene.alignment_notes()) log::info("map: scene " + spec.id + ": " + note);
   const WindowLayout layout = window_layout(scene.grid(), model.chip_size(), s.stride, spec.id);
@@ -155,53 +164,67 @@ SceneMapSummary map_scene(const SceneSpec& spec, const MapContext& context, cons
   ProductSpec product{layout, scene.grid().crs_wkt, model.classes(), s.probabilities,
                       context.evidence.applicability.has_value(), 1, context.metadata};
   product.metadata["TINCT_SCENE"] = spec.id;
+  product.ensemble = model.is_ensemble();
   const int step = s.applicability_step();
   product.aoa_step = step;
   MapProducts products(folder, product);
   Quicklook quicklook(layout.columns, layout.rows, layout.cells[1], crs_units(scene.grid().crs_wkt), model.classes(),
-                      "tinct map: " + spec.id + " (" + s.run.filename().string() + ", " + to_string(s.mode) + ")");
+                      "tinct map: " + spec.id + " (" + s.model_name() + ", " + to_string(s.mode) + ")");
 
   const std::size_t k = model.classes().size(), f = static_cast<std::size_t>(model.feature_count());
   SceneMapSummary summary;
   SceneStrip strip;
-  StripOutputs outputs;
+  WindowOutputs outputs;
   std::vector<CellValues> row_cells(static_cast<std::size_t>(layout.columns));
   Progress progress("map " + spec.id, layout.rows, "window rows");
   const int strip_rows = strip_window_rows(layout, static_cast<int>(s.inputs.bands.size()), step);
+  StageClock clock;
+  StageSeconds stages;
   for (int first = 0; first < layout.rows; first += strip_rows) {
     const int rows = std::min(strip_rows, layout.rows - first);
+    clock.start();
     strip.read(scene, layout, encoding, first, rows);
     const std::size_t windows = static_cast<std::size_t>(rows) * layout.columns;
-    outputs.logits.assign(windows * k, 0.0f);
-    outputs.features.assign(windows * f, 0.0f);
+    outputs.assign_zero(windows, k, f);
     std::vector<std::size_t> valid;
     for (std::size_t w = 0; w < windows; ++w) {
       const int row = static_cast<int>(w / layout.columns), col = static_cast<int>(w % layout.columns);
       if (strip.valid_fraction(col, row) >= s.min_valid) valid.push_back(w);
     }
+    clock.stop(stages.read);
+    clock.start();
     if (s.mode == MapMode::dense) run_dense(model, strip, layout, rows, outputs);
     else run_exact(model, strip, layout, valid, s.batch, outputs);
+    clock.stop(stages.model);
+    clock.start();
     std::vector<CellValues> cells(windows);
     for (std::size_t w : valid) cells[w].valid = true;
-    fill_cells(outputs.logits.data(), outputs.features.data(), static_cast<int>(k), static_cast<int>(f),
-               context.evidence, context.threads, step == 1, cells);
+    fill_cells(outputs, static_cast<int>(k), static_cast<int>(f), context.evidence, context.threads, step == 1,
+               cells);
+    clock.stop(stages.cells);
     if (context.evidence.applicability) {
-      for (const auto& coarse_row : applicability_rows(model, strip, layout, first, rows, step, context, cells)) {
-        products.write_applicability_row(coarse_row);
-      }
+      clock.start();
+      const auto coarse_rows = applicability_rows(model, strip, layout, first, rows, step, context, cells);
+      clock.stop(stages.applicability);
+      for (const auto& coarse_row : coarse_rows) products.write_applicability_row(coarse_row);
     }
+    clock.start();
     for (int r = 0; r < rows; ++r) {
       std::copy_n(cells.begin() + static_cast<std::size_t>(r) * layout.columns, layout.columns, row_cells.begin());
       products.write_row(row_cells);
       quicklook.add_row(first + r, row_cells);
     }
+    clock.stop(stages.write);
     summary.valid += static_cast<std::int64_t>(valid.size());
     for (std::size_t w : valid) summary.outside += cells[w].inside ? 0 : 1;
     progress.update(first + rows);
   }
   progress.finish();
+  clock.start();
   products.finish();
   quicklook.write(folder / "quicklook.png");
+  clock.stop(stages.write);
+  log::info("map: " + spec.id + ": " + stages.text());
   summary.cells = static_cast<std::int64_t>(layout.columns) * layout.rows;
   summary.crs_wkt = scene.grid().crs_wkt;
   summary.megapixels = static_cast<double>(scene.grid().width) * scene.grid().height / 1e6;

@@ -10,15 +10,15 @@
 #include "mapping/map_settings.hpp"
 #include "mapping/run_evidence.hpp"
 #include "mapping/scene_strip.hpp"
-#include "mapping/window_model.hpp"
+#include "mapping/map_model.hpp"
 #include "raster/scene_spec.hpp"
 
 namespace tinct {
 
 struct MapContext {
   const MapSettings& settings;
-  WindowModel& model;
-  const RunEvidence& evidence;
+  MapModel& model;
+  const RunEvidence& evidence;  // the first member's: its area of applicability
   std::map<std::string, std::string> metadata;  // caution and provenance for every file
   int threads = 0;
 };

@@ -2,7 +2,6 @@
 
 #include <algorithm>
 
-#include "assess/temperature_scaling.hpp"
 
 namespace tinct {
 
@@ -25,20 +24,19 @@ void fill_applicability(const float* features, int feature_count, const RunEvide
   }
 }
 
-void fill_cells(const float* logits, const float* features, int classes, int feature_count,
-                const RunEvidence& evidence, int threads, bool with_applicability, std::vector<CellValues>& cells) {
+void fill_cells(const WindowOutputs& outputs, int classes, int feature_count, const RunEvidence& evidence,
+                int threads, bool with_applicability, std::vector<CellValues>& cells) {
   const auto k = static_cast<std::size_t>(classes);
-  std::vector<float> probabilities(k);
   for (std::size_t i = 0; i < cells.size(); ++i) {
     CellValues& cell = cells[i];
     if (!cell.valid) continue;
-    apply_temperature(logits + i * k, 1, classes, evidence.temperature, probabilities.data());
-    cell.probabilities = probabilities;
-    cell.predicted = static_cast<int>(std::max_element(probabilities.begin(), probabilities.end()) -
-                                      probabilities.begin());
-    cell.uncertainty = normalised_entropy(probabilities.data(), classes);
+    const auto p = outputs.probabilities.begin() + static_cast<std::ptrdiff_t>(i * k);
+    cell.probabilities.assign(p, p + static_cast<std::ptrdiff_t>(k));
+    cell.predicted = static_cast<int>(std::max_element(p, p + static_cast<std::ptrdiff_t>(k)) - p);
+    cell.uncertainty = normalised_entropy(cell.probabilities.data(), classes);
+    cell.disagreement = outputs.disagreement[i];
   }
-  if (with_applicability) fill_applicability(features, feature_count, evidence, threads, cells);
+  if (with_applicability) fill_applicability(outputs.features.data(), feature_count, evidence, threads, cells);
 }
 
 }  // namespace tinct
