@@ -152,6 +152,7 @@ tinct_script_test(study_report_render ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests
 set_tests_properties(study_report_render PROPERTIES SKIP_RETURN_CODE 77)
 # tinct study end to end on generated data: summary files, paired design, SciPy's statistics, resume.
 tinct_script_test(study_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_runs.py)
+tinct_script_test(study_ranks ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/study_ranks.py)
 
 # --force replacement killed by strace at each of its steps; a store written onto a full tmpfs.
 tinct_script_test(store_replacement ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/store_replacement.py)

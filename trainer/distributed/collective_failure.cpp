@@ -11,15 +11,6 @@ const char* const kStartHint =
     "Every rank must be started with the same MASTER_ADDR, MASTER_PORT and WORLD_SIZE (under Slurm: "
     "through srun, one task per rank)";
 
-// The engine's message without c10's backtrace, on one line.
-std::string engine_text(const std::exception& error) {
-  const auto* c10_error = dynamic_cast<const c10::Error*>(&error);
-  std::string text = c10_error ? c10_error->what_without_backtrace() : error.what();
-  const std::size_t newline = text.find('\n');
-  if (newline != std::string::npos) text.resize(newline);
-  return text;
-}
-
 std::string rank_label(const CollectiveContext& context) {
   return "rank " + std::to_string(context.place.rank) + " of " + std::to_string(context.place.world);
 }
@@ -35,6 +26,14 @@ std::string peer(const CollectiveContext& context) {
 }
 
 }  // namespace
+
+std::string engine_text(const std::exception& error) {
+  const auto* c10_error = dynamic_cast<const c10::Error*>(&error);
+  std::string text = c10_error ? c10_error->what_without_backtrace() : error.what();
+  const std::size_t newline = text.find('\n');
+  if (newline != std::string::npos) text.resize(newline);
+  return text;
+}
 
 void fail_join(const CollectiveContext& context, const std::exception& error) {
   fail_runtime(rank_label(context) + " could not join the job at " + address(context) + " (" + engine_text(error) +

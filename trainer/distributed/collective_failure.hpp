@@ -16,6 +16,9 @@ struct CollectiveContext {
   int timeout_seconds = 0;
 };
 
+// The engine's message without c10's backtrace, on one line.
+std::string engine_text(const std::exception& error);
+
 // The store or the process group could not be set up (rank 0 unreachable, port in use).
 [[noreturn]] void fail_join(const CollectiveContext& context, const std::exception& error);
 

@@ -7,6 +7,7 @@
 #include <cstddef>
 #include <filesystem>
 #include <functional>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -27,11 +28,22 @@ struct ChildExit {
 // This process's executable (/proc/self/exe resolved).
 std::filesystem::path self_executable();
 
-// Starts jobs in order, keeping `parallel` running; `finished(index, exit)` runs in this
-// process as each ends, while the others go on. If `finished` throws, the running children
-// get SIGTERM and are waited for before the error goes on.
+// The next job to start, none when there are no more (asked only when there is room).
+using NextChildJob = std::function<std::optional<ChildJob>()>;
+using ChildFinished = std::function<void(std::size_t, const ChildExit&)>;
+
+// Starts jobs as `next` hands them out, keeping `parallel` running; `finished(index, exit)`
+// runs in this process as each ends (index: the job's place in the order handed out),
+// while the others go on. `idle`, when given, runs every 100 ms while children run. If
+// `finished`, `next` or `idle` throws, the running children get SIGTERM and are waited for
+// before the error goes on. Children do not inherit the variables that place a process in
+// a data-parallel job (RANK, WORLD_SIZE, MASTER_*, SLURM_PROCID, SLURM_NTASKS): each is a
+// process of its own, whatever job the caller belongs to.
+void run_children(const std::filesystem::path& program, const NextChildJob& next, int parallel,
+                  const ChildFinished& finished, const std::function<void()>& idle = {});
+// The same for a list of jobs, in order.
 void run_children(const std::filesystem::path& program, const std::vector<ChildJob>& jobs, int parallel,
-                  const std::function<void(std::size_t, const ChildExit&)>& finished);
+                  const ChildFinished& finished);
 
 // The last line of `log` that holds "error" (what tinct printed before exiting), else its last line.
 std::string last_error_line(const std::filesystem::path& log);

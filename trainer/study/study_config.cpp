@@ -187,6 +187,12 @@ std::vector<std::pair<std::string, std::string>> read_compare(const ConfigNode& 
   return pairs;
 }
 
+void read_distributed(const ConfigNode& node, StudyConfig& config) {
+  config.port = static_cast<int>(node.integer("port", config.port, 1, 65535));
+  config.timeout_seconds = static_cast<int>(node.integer("timeout", config.timeout_seconds, 1, 86400));
+  node.finish();
+}
+
 }  // namespace
 
 std::vector<std::string> study_arm_names(const StudyConfig& config) {
@@ -223,6 +229,7 @@ StudyConfig read_study_config(const ConfigNode& root) {
   config.compare = read_compare(root, config);
   config.parallel = static_cast<int>(root.integer("parallel", kDefaultParallel, 1, 256));
   config.allow_random = root.flag("allow_random", false);
+  read_distributed(root.section("distributed"), config);
   return config;
 }
 

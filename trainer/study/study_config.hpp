@@ -37,6 +37,10 @@ struct StudyConfig {
   std::vector<std::pair<std::string, std::string>> compare;  // (arm_a, arm_b)
   int parallel = 1;
   bool allow_random = false;
+  // distributed: where the ranks of a study spread over an allocation meet (rank 0's port
+  // when MASTER_PORT is not set) and how long a silent rank is waited for.
+  int port = 29500;
+  int timeout_seconds = 300;
 };
 
 // Fine-tunes at once by default. scripts/bench.sh (study_bench.py) on 2 cores: a 24-run study

@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <chrono>
 #include <cstdio>
+#include <functional>
+#include <optional>
 
 #include <yaml-cpp/yaml.h>
 
@@ -11,6 +13,7 @@
 #include "runs/run_folder.hpp"
 #include "study/child_runs.hpp"
 #include "study/prediction_table.hpp"
+#include "study/study_ranks.hpp"
 #include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/log.hpp"
@@ -147,7 +150,9 @@ ChildJob finetune_job(const StudyPlan& plan, const PlannedRun& run, int threads)
   return {{"--threads", std::to_string(threads), "finetune", config.string(), "--force"}, folder.string() + ".log"};
 }
 
-void finish_finetune(const StudyPlan& plan, const PlannedRun& run, const ChildExit& exit, RunState& state) {
+// `keeps_log`: this process writes the study's log.txt (rank 0 alone).
+void finish_finetune(const StudyPlan& plan, const PlannedRun& run, const ChildExit& exit, RunState& state,
+                     bool keeps_log = true) {
   const fs::path folder = plan.folder / run.folder;
   if (!exit.ok()) {
     const std::string reason = recorded_reason(folder);
@@ -162,11 +167,17 @@ void finish_finetune(const StudyPlan& plan, const PlannedRun& run, const ChildEx
     state.ok = false;
     state.message = std::string("applying the model to the validation chips failed: ") + error.what();
   }
-  log::set_file(plan.folder / "log.txt");
+  if (keeps_log) {
+    log::set_file(plan.folder / "log.txt");
+  } else {
+    log::close_file();
+  }
 }
 
-void run_finetunes(const StudyPlan& plan, const StudyExecution& options, std::vector<RunState>& states,
-                   ExecutionCounts& counts) {
+// The fine-tunes to run: those not finished before with the same config (all with --force).
+// A finished one without its validation predictions gets them here.
+std::vector<std::size_t> finetunes_to_run(const StudyPlan& plan, const StudyExecution& options,
+                                          std::vector<RunState>& states, ExecutionCounts& counts) {
   std::vector<std::size_t> todo;
   for (std::size_t i = 0; i < plan.runs.size(); ++i) {
     const PlannedRun& run = plan.runs[i];
@@ -182,41 +193,96 @@ void run_finetunes(const StudyPlan& plan, const StudyExecution& options, std::ve
     }
   }
   if (counts.skipped) log::info("study: " + std::to_string(counts.skipped) + " fine-tunes finished before, skipped");
+  return todo;
+}
+
+// What every rank must agree on before sharing runs: each run's folder and config hash.
+std::string plan_fingerprint(const StudyPlan& plan) {
+  std::string text;
+  for (const PlannedRun& run : plan.runs) text += run.folder.string() + " " + run.hash + "\n";
+  return sha256_hex(text);
+}
+
+std::string where_ran(const StudyRanks& ranks, int rank) {
+  return ranks.single() ? "" : " on rank " + std::to_string(rank);
+}
+
+void log_outcome(const std::string& label, const RunState& state, const std::string& where) {
+  if (state.ok) {
+    log::write_file_only(log::Level::info, "study: " + label + " done" + where);
+  } else {
+    log::warning("study: " + label + " failed" + where + ": " + state.message);
+  }
+}
+
+// Runs the fine-tunes this rank draws from `todo`, `parallel` at once.
+void run_finetunes(const StudyPlan& plan, const StudyExecution& options, const std::vector<std::size_t>& todo,
+                   std::vector<RunState>& states, ExecutionCounts& counts, StudyRanks& ranks) {
   if (todo.empty()) return;
   const int parallel = std::max(1, std::min(plan.config.parallel, static_cast<int>(todo.size())));
   const int threads = std::max(1, options.threads / parallel);
-  log::info("study: " + std::to_string(todo.size()) + " fine-tunes to run, " + std::to_string(parallel) +
-            " at once with " + std::to_string(threads) + " thread" + (threads > 1 ? "s" : "") + " each");
-  std::vector<ChildJob> jobs;
-  for (const std::size_t i : todo) jobs.push_back(finetune_job(plan, plan.runs[i], threads));
+  log::info("study: " + std::to_string(todo.size()) + " fine-tunes to run" +
+            (ranks.single() ? "" : " over " + std::to_string(ranks.world()) + " ranks") + ", " +
+            std::to_string(parallel) + " at once" + (ranks.single() ? "" : " on each") + " with " +
+            std::to_string(threads) + " thread" + (threads > 1 ? "s" : "") + " each");
   Progress progress("study", static_cast<std::int64_t>(todo.size()), "fine-tunes");
-  const auto start = std::chrono::steady_clock::now();
-  int done = 0;
-  run_children(self_executable(), jobs, parallel, [&](std::size_t job, const ChildExit& exit) {
-    const std::size_t i = todo[job];
-    finish_finetune(plan, plan.runs[i], exit, states[i]);
-    const std::string label = run_label(plan.config, plan.runs[i].arm, plan.runs[i].cell);
-    if (states[i].ok) {
-      ++counts.ran;
-      log::write_file_only(log::Level::info, "study: " + label + " done");
-    } else {
-      ++counts.failed;
-      log::warning("study: " + label + " failed: " + states[i].message);
+  std::vector<std::size_t> drawn;  // positions in `todo`, in the order this rank drew them
+  std::int64_t done = 0;
+  std::string last_label;
+  auto show = [&] { progress.update(ranks.single() ? done : ranks.finished_runs(), last_label); };
+  auto next = [&]() -> std::optional<ChildJob> {
+    const std::optional<std::size_t> position = ranks.next(todo.size());
+    if (!position) return std::nullopt;
+    drawn.push_back(*position);
+    return finetune_job(plan, plan.runs[todo[*position]], threads);
+  };
+  auto finished = [&](std::size_t job, const ChildExit& exit) {
+    const std::size_t i = todo[drawn[job]];
+    finish_finetune(plan, plan.runs[i], exit, states[i], ranks.is_writer());
+    ranks.report(drawn[job], states[i].ok, states[i].message);
+    ++(states[i].ok ? counts.ran : counts.failed);
+    last_label = run_label(plan.config, plan.runs[i].arm, plan.runs[i].cell);
+    log_outcome(last_label, states[i], where_ran(ranks, ranks.rank()));
+    ++done;
+    show();
+  };
+  std::function<void()> idle;
+  if (!ranks.single()) idle = [&] { ranks.keep_alive(); if (ranks.is_writer()) show(); };
+  run_children(self_executable(), next, parallel, finished, idle);
+  if (ranks.is_writer() && !ranks.single()) {
+    const std::vector<RunOutcome> outcomes = ranks.gather(todo.size(), show);
+    for (std::size_t position = 0; position < todo.size(); ++position) {
+      const RunOutcome& outcome = outcomes[position];
+      if (outcome.rank == ranks.rank()) continue;  // logged as it ended
+      RunState& state = states[todo[position]];
+      state.ok = outcome.ok;
+      state.message = outcome.message;
+      ++(state.ok ? counts.ran : counts.failed);
+      const PlannedRun& run = plan.runs[todo[position]];
+      log_outcome(run_label(plan.config, run.arm, run.cell), state, where_ran(ranks, outcome.rank));
     }
-    progress.update(++done, label);
-  });
+  }
   progress.finish();
-  counts.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
 }
 
 }  // namespace
 
-std::vector<RunState> execute_study(const StudyPlan& plan, const StudyExecution& options, ExecutionCounts& counts) {
+std::vector<RunState> execute_study(const StudyPlan& plan, const StudyExecution& options, ExecutionCounts& counts,
+                                    StudyRanks& ranks) {
   std::vector<RunState> states(plan.runs.size());
-  for (std::size_t i = 0; i < plan.runs.size(); ++i) {
-    if (plan.runs[i].kind == PlannedKind::baseline) run_here(plan, i, options, states);
+  std::vector<std::size_t> todo;
+  if (ranks.is_writer()) todo = finetunes_to_run(plan, options, states, counts);
+  todo = ranks.share_todo(todo, plan_fingerprint(plan));
+  if (ranks.is_writer()) {
+    for (std::size_t i = 0; i < plan.runs.size(); ++i) {
+      if (plan.runs[i].kind == PlannedKind::baseline) run_here(plan, i, options, states);
+    }
   }
-  run_finetunes(plan, options, states, counts);
+  const auto start = std::chrono::steady_clock::now();
+  run_finetunes(plan, options, todo, states, counts, ranks);
+  counts.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - start).count();
+  ranks.finish();
+  if (!ranks.is_writer()) return states;
   for (std::size_t i = 0; i < plan.runs.size(); ++i) {
     if (plan.runs[i].kind == PlannedKind::ensemble) run_here(plan, i, options, states);
   }

@@ -5,10 +5,14 @@
 #include <iostream>
 #include <sstream>
 
+#include "distributed/rank_board.hpp"
+#include "runs/torch_runtime.hpp"
 #include "study/report_html.hpp"
 #include "study/results_table.hpp"
 #include "study/study_report_builder.hpp"
+#include "study/study_ranks.hpp"
 #include "study/study_summary.hpp"
+#include "training/parallel_launch.hpp"
 #include "util/error.hpp"
 #include "util/folder_lock.hpp"
 #include "util/log.hpp"
@@ -46,6 +50,26 @@ std::string throughput(const ExecutionCounts& counts) {
   return text;
 }
 
+// This process's place among the ranks the environment describes (alone: one process);
+// its compute threads are set for it.
+StudyRanks join_study_ranks(const StudyConfig& config, const StudyOptions& options) {
+  const Rendezvous place = take_place(config.port, options.world, options.threads);
+  if (place.single()) return StudyRanks();
+  return StudyRanks(std::make_unique<RankBoard>(place, config.timeout_seconds));
+}
+
+// A rank other than 0: runs the fine-tunes it draws; rank 0 learns of a failure here.
+void run_study_rank(const StudyPlan& plan, const StudyOptions& options, StudyRanks& ranks) {
+  ExecutionCounts counts;
+  try {
+    execute_study(plan, {options.force, threads_in_use()}, counts, ranks);
+  } catch (const std::exception& error) {
+    ranks.abandon(error.what());
+    throw;
+  }
+  log::info("study: " + ranks.rank_label() + " ran " + std::to_string(counts.ran) + " fine-tunes");
+}
+
 }  // namespace
 
 void run_study(const fs::path& config_file, const StudyOptions& options) {
@@ -54,6 +78,11 @@ void run_study(const fs::path& config_file, const StudyOptions& options) {
   const StudyConfig config = read_study_config(root);
   root.finish();
   const StudyPlan plan = plan_study(config);
+  StudyRanks ranks = join_study_ranks(config, options);
+  if (!ranks.is_writer()) {
+    run_study_rank(plan, options, ranks);
+    return;
+  }
 
   fs::create_directories(plan.folder);
   FolderLock lock(plan.folder, plan.folder / "lock", "wait for the other study to finish");
@@ -62,7 +91,7 @@ void run_study(const fs::path& config_file, const StudyOptions& options) {
   for (const std::string& warning : plan.warnings) log::warning(warning);
 
   ExecutionCounts counts;
-  const std::vector<RunState> states = execute_study(plan, {options.force, options.threads}, counts);
+  const std::vector<RunState> states = execute_study(plan, {options.force, threads_in_use()}, counts, ranks);
   log::info(throughput(counts));
   const CollectedStudy collected = collect_study(plan, states);
   const StudyStatistics statistics = study_statistics(plan, collected);

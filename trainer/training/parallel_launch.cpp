@@ -51,17 +51,23 @@ bool run_as_local_ranks(int world) {
   return true;
 }
 
-std::shared_ptr<DataParallel> join_data_parallel(const DistributedSettings& settings, int world_flag, int requested) {
+Rendezvous take_place(int default_port, int world_flag, int requested) {
   const Environment environment = process_environment();
-  const Rendezvous place = read_rendezvous(environment, settings.port);
+  const Rendezvous place = read_rendezvous(environment, default_port);
   if (world_flag > 1 && place.world != world_flag) {
     fail_usage("--world " + std::to_string(world_flag) + " but this process is one of " + std::to_string(place.world) +
                " (" + place.source + "); give --world only when starting local ranks from a shell");
   }
-  if (place.single()) return nullptr;
+  if (place.single()) return place;
   if (place.rank != 0) log::set_quiet(true);
   const int cores = cores_for(environment, requested);
   configure_threads(place.on_loopback() ? threads_per_rank(cores, place.world) : cores);
+  return place;
+}
+
+std::shared_ptr<DataParallel> join_data_parallel(const DistributedSettings& settings, int world_flag, int requested) {
+  const Rendezvous place = take_place(settings.port, world_flag, requested);
+  if (place.single()) return nullptr;
   return std::make_shared<DataParallel>(place, settings);
 }
 

@@ -7,6 +7,7 @@
 #include <memory>
 
 #include "distributed/distributed_settings.hpp"
+#include "distributed/rendezvous.hpp"
 
 namespace tinct {
 
@@ -16,6 +17,12 @@ class DataParallel;
 // runs them (this program, this command line) and returns once all have ended well;
 // a failed rank fails it. False: the caller goes on as a process of the job (or alone).
 bool run_as_local_ranks(int world);
+
+// Where this process sits in the job the environment describes (rank 0 of 1 when alone),
+// for commands whose ranks work on their own. For more than one rank: ranks other than 0
+// print only warnings and errors, and the compute threads are set as join_data_parallel says.
+// `default_port` applies when MASTER_PORT is not set.
+Rendezvous take_place(int default_port, int world_flag, int requested);
 
 // This process's part in the job the environment describes (null for one process). Its
 // compute threads: `requested` (--threads or train.threads; 0 = all cores, or Slurm's
