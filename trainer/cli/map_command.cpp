@@ -57,7 +57,7 @@ CommandRun setup_map(CLI::App& command, const GlobalOptions& global) {
                      "Predict at these points instead (CSV with x,y or lon,lat, or any OGR point layer)");
   command.add_option("--mode", options->mode, "exact (each window alone) or dense (encoder over tiles)")
       ->check(CLI::IsMember({"exact", "dense"}));
-  command.add_option("--stride", options->stride, "Pixels between window centres")->check(CLI::PositiveNumber);
+  command.add_option("--stride", options->stride, "Pixels between window centres")->check(kCountRange);
   command.add_flag("--force", options->force, "Replace an existing output folder");
   return [options, &global] { run_map_command(*options, global); };
 }
