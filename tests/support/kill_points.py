@@ -10,7 +10,7 @@ import subprocess
 from tiny_project import tinct_command
 
 STRACE = shutil.which("strace")
-SYSCALLS = "write,rename,renameat,renameat2"
+SYSCALLS = "write,fsync,rename,renameat,renameat2"
 
 
 def traced_calls(work, args, follow=True):
@@ -25,7 +25,7 @@ def traced_calls(work, args, follow=True):
         if not match:
             continue
         pid, name, rest = match.groups()
-        path = re.findall(r"<([^>]*)>", rest)[:1] if name == "write" else re.findall(r'"([^"]*)"', rest)[-1:]
+        path = re.findall(r"<([^>]*)>", rest)[:1] if name in ("write", "fsync") else re.findall(r'"([^"]*)"', rest)[-1:]
         calls.append((int(pid or 0), name, path[0] if path else ""))
     return run, calls
 
