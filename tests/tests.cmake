@@ -181,4 +181,6 @@ tinct_script_test(disk_full_runs ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/inte
 set_tests_properties(disk_full_runs PROPERTIES SKIP_RETURN_CODE 77)
 tinct_script_test(bad_input_sweep ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/bad_input_sweep.py)
 tinct_script_test(crash_points ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/crash_points.py)
+tinct_script_test(crash_study_map ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/crash_study_map.py)
+tinct_script_test(resume_rate_change ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/resume_rate_change.py)
 tinct_script_test(memory_limits ${DEBIAN_PYTHON} ${CMAKE_SOURCE_DIR}/tests/integration/memory_limits.py)

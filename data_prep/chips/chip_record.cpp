@@ -2,9 +2,9 @@
 
 #include <charconv>
 
-#include "util/number_text.hpp"
 #include "util/csv_field.hpp"
 #include "util/error.hpp"
+#include "util/number_text.hpp"
 
 namespace tinct {
 namespace {
@@ -18,38 +18,10 @@ std::string_view without_line_ending(std::string_view row) {
 }
 
 std::vector<std::string> split_fields(std::string_view row, const std::string& where) {
-  std::vector<std::string> fields(1);
-  std::size_t i = 0;
-  while (i < row.size()) {
-    const char c = row[i];
-    if (c == ',') {
-      fields.emplace_back();
-      ++i;
-    } else if (c != '"') {
-      fields.back() += c;
-      ++i;
-    } else if (!fields.back().empty()) {
-      fail_runtime(where + ": a quote inside an unquoted field" + kHint);
-    } else {
-      ++i;
-      for (;; ++i) {
-        if (i >= row.size()) fail_runtime(where + ": a quoted field is not closed" + kHint);
-        if (row[i] != '"') {
-          fields.back() += row[i];
-        } else if (i + 1 < row.size() && row[i + 1] == '"') {
-          fields.back() += '"';
-          ++i;
-        } else {
-          break;
-        }
-      }
-      ++i;
-      if (i < row.size() && row[i] != ',') {
-        fail_runtime(where + ": text after a closing quote" + kHint);
-      }
-    }
-  }
-  return fields;
+  std::string problem;
+  auto fields = parse_csv_row(row, &problem);
+  if (!fields) fail_runtime(where + ": " + problem + kHint);
+  return std::move(*fields);
 }
 
 template <typename Number>

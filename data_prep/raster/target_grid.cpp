@@ -7,6 +7,7 @@
 #include <memory>
 
 #include "util/error.hpp"
+#include "util/number_text.hpp"
 
 namespace tinct {
 namespace {
@@ -19,6 +20,43 @@ void require_north_up(const Raster& raster) {
     fail_runtime(raster.path().string() + ": the grid is rotated or not north-up; warp it to a "
                  "north-up grid first (gdalwarp)");
   }
+}
+
+struct Extent {
+  double min_x, max_x, min_y, max_y;
+};
+
+Extent extent_of(const Raster& raster) {
+  const GeoTransform gt = raster.geotransform();
+  return {gt[0], gt[0] + raster.width() * gt[1], gt[3] + raster.height() * gt[5], gt[3]};
+}
+
+bool overlap(const Extent& a, const Extent& b) {
+  return std::max(a.min_x, b.min_x) < std::min(a.max_x, b.max_x) &&
+         std::max(a.min_y, b.min_y) < std::min(a.max_y, b.max_y);
+}
+
+// Names the band file that overlaps the fewest others (the later one of a tie: with two
+// files, the first is taken as the scene), not just the first file of the scene.
+[[noreturn]] void fail_disjoint(const std::vector<const Raster*>& rasters) {
+  std::size_t odd = 0, fewest = rasters.size();
+  for (std::size_t i = 0; i < rasters.size(); ++i) {
+    std::size_t overlapping = 0;
+    for (std::size_t j = 0; j < rasters.size(); ++j) {
+      overlapping += j != i && overlap(extent_of(*rasters[i]), extent_of(*rasters[j]));
+    }
+    if (overlapping <= fewest) odd = i, fewest = overlapping;
+  }
+  const Extent e = extent_of(*rasters[odd]);
+  std::string others;
+  for (std::size_t j = 0; j < rasters.size(); ++j) {
+    if (j != odd) others += (others.empty() ? "" : ", ") + rasters[j]->path().filename().string();
+  }
+  fail_runtime(rasters[odd]->path().string() + ": this band file (x " + fixed_text(e.min_x) + " to " +
+               fixed_text(e.max_x) + ", y " + fixed_text(e.min_y) + " to " + fixed_text(e.max_y) +
+               ") shares no area with the scene's other band files (" + others +
+               "); every band file of a scene must show the same area: check its path "
+               "in the config");
 }
 
 }  // namespace
@@ -89,9 +127,7 @@ TargetGrid shared_grid(const std::vector<const Raster*>& rasters, double resolut
     max_y = std::min(max_y, gt[3]);
     min_y = std::max(min_y, gt[3] + raster->height() * gt[5]);
   }
-  if (min_x >= max_x || min_y >= max_y) {
-    fail_runtime(first.path().string() + ": the scene's band files do not overlap");
-  }
+  if (min_x >= max_x || min_y >= max_y) fail_disjoint(rasters);
   // Snap the shared extent inwards onto the first file's origin at the target resolution.
   const GeoTransform origin = first.geotransform();
   const double col0 = std::ceil((min_x - origin[0]) / resolution - kTolerance);

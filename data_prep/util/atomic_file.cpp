@@ -1,6 +1,7 @@
 #include "util/atomic_file.hpp"
 
 #include <fcntl.h>
+#include <signal.h>
 #include <unistd.h>
 
 #include <cerrno>
@@ -54,6 +55,36 @@ void rename_into_place(const fs::path& from, const fs::path& target, bool remove
 fs::path temporary_sibling(const fs::path& path) {
   return parent_or_dot(path) /
          ("." + path.filename().string() + ".tmp." + std::to_string(::getpid()));
+}
+
+namespace {
+
+// The pid of ".NAME.tmp.PID", or 0 when the name is not a temporary's.
+pid_t temporary_owner(const std::string& name) {
+  const std::size_t at = name.rfind(".tmp.");
+  if (name.size() < 2 || name[0] != '.' || at == std::string::npos || at + 5 >= name.size()) return 0;
+  const std::string digits = name.substr(at + 5);
+  if (digits.find_first_not_of("0123456789") != std::string::npos || digits.size() > 9) return 0;
+  return static_cast<pid_t>(std::stol(digits));
+}
+
+bool process_lives(pid_t pid) { return ::kill(pid, 0) == 0 || errno == EPERM; }
+
+}  // namespace
+
+int remove_orphaned_temporaries(const fs::path& folder) {
+  int removed = 0;
+  std::error_code ec;
+  for (fs::recursive_directory_iterator it(folder, ec), end; !ec && it != end; it.increment(ec)) {
+    const pid_t owner = temporary_owner(it->path().filename().string());
+    if (owner <= 0 || owner == ::getpid() || process_lives(owner) || !it->is_regular_file(ec)) continue;
+    std::error_code removal;
+    if (fs::remove(it->path(), removal)) {
+      log::info("removed " + it->path().string() + ", a temporary file left by an interrupted write");
+      ++removed;
+    }
+  }
+  return removed;
 }
 
 fs::path partial_folder_of(const fs::path& target) { return with_suffix(target, ".partial"); }

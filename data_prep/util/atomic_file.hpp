@@ -77,4 +77,9 @@ class PartialFolder {
 std::filesystem::path partial_folder_of(const std::filesystem::path& target);
 std::filesystem::path aside_folder_of(const std::filesystem::path& target);
 
+// Removes the temporaries of atomic writes (".NAME.tmp.PID") anywhere under `folder` whose
+// process has ended, a kill having cut their write short; returns how many. For a folder
+// whose lock the caller holds.
+int remove_orphaned_temporaries(const std::filesystem::path& folder);
+
 }  // namespace tinct

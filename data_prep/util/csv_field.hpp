@@ -28,20 +28,27 @@ inline std::string csv_field(const std::string& field) {
   return out;
 }
 
-// The fields of one RFC 4180 row (without its line ending); nullopt when a quote is
-// not closed or text follows a closing quote.
-inline std::optional<std::vector<std::string>> parse_csv_row(std::string_view row) {
+// The fields of one RFC 4180 row (without its line ending); nullopt when a quote is not
+// closed, text follows a closing quote or a quote stands inside an unquoted field, with
+// which of these in `problem` when given.
+inline std::optional<std::vector<std::string>> parse_csv_row(std::string_view row, std::string* problem = nullptr) {
+  const auto refuse = [&](const char* why) {
+    if (problem) *problem = why;
+    return std::nullopt;
+  };
   std::vector<std::string> fields(1);
   std::size_t i = 0;
   while (i < row.size()) {
     if (row[i] == ',') {
       fields.emplace_back();
       ++i;
-    } else if (row[i] != '"' || !fields.back().empty()) {
+    } else if (row[i] != '"') {
       fields.back() += row[i++];
+    } else if (!fields.back().empty()) {
+      return refuse("a quote inside an unquoted field");
     } else {
       for (++i;; ++i) {
-        if (i >= row.size()) return std::nullopt;
+        if (i >= row.size()) return refuse("a quoted field is not closed");
         if (row[i] != '"') {
           fields.back() += row[i];
         } else if (i + 1 < row.size() && row[i + 1] == '"') {
@@ -51,7 +58,7 @@ inline std::optional<std::vector<std::string>> parse_csv_row(std::string_view ro
           break;
         }
       }
-      if (++i < row.size() && row[i] != ',') return std::nullopt;
+      if (++i < row.size() && row[i] != ',') return refuse("text after a closing quote");
     }
   }
   return fields;

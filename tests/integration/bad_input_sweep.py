@@ -1,11 +1,13 @@
 """Bad input across every command, table-driven: each malformed input ends with its
-expected exit code (2 for usage, 1 for failures) and a phrase of a message that says
-what and where, never with a crash (a signal, an abort, a backtrace or the catch-all
-"unexpected failure"), and leaves no half-written output (no NAME.partial/, no
+expected exit code (2 for usage, 1 for failures, 0 where the input is skipped with a
+warning) and a phrase of a message that says what and where, never with a crash (a
+signal, an abort, a backtrace, the catch-all "unexpected failure" or a number of 40 and
+more digits, such as a range bound of 1e300 printed in full), and leaves no half-written
+output (no NAME.partial/, no
 temporary file, no run folder that blocks a re-run)."""
 import os
+import re
 import shutil
-import subprocess
 import sys
 import tempfile
 
@@ -14,7 +16,7 @@ import numpy as np
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
 from synthetic import Checks, write  # noqa: E402
 from tiny_project import (LABEL, PAIR, finetune_config, make_stores, pretrain_config,  # noqa: E402
-                          run_tinct, write_text)
+                          run_tinct, write_input_stack, write_text)
 
 checks = Checks()
 
@@ -32,6 +34,18 @@ init: {from: scratch, model: {encoder: compact, width: 0.5}}
 split: {method: blocks, block_size: 640, folds: 4, fold: 2}
 train: {epochs: 1, batch: 16, lr: 0.003, seed: 3}
 """
+STUDY = """config: study
+output: studies/sweep
+finetune: study-base.yaml
+arms:
+  - {name: scratch, init: {from: scratch, model: {encoder: compact, width: 0.5}}}
+baselines: []
+seeds: [1]
+budgets: [all]
+folds: 2
+"""
+ARM = "  - {name: scratch, init: {from: scratch, model: {encoder: compact, width: 0.5}}}\n"
+BAND_NAMES = ["blue", "green", "red", "nir", "swir"]
 
 
 def replaced(text, old, new):
@@ -49,6 +63,33 @@ def prepare_small_scene(work):
 
 def prepare_clouded_scene(work):
     write(os.path.join(work, "clouded.tif"), [np.zeros((64, 64), np.uint16) for _ in range(5)], nodata=0)
+
+
+def prepare_band_files(work):
+    """One single-band file per band; the swir file lies 10 km east of the others."""
+    for i, band in enumerate(BAND_NAMES):
+        origin = (510000.0 if band == "swir" else 500000.0, 5300000.0)
+        write(os.path.join(work, f"f-{band}.tif"), [np.full((64, 64), 900 + 100 * i, np.uint16)], origin=origin, nodata=0)
+
+
+def prepare_map_output(work):
+    os.makedirs(os.path.join(work, "maps", "old"), exist_ok=True)
+    write_text(work, "maps/old/classes.tif", "an earlier map")
+
+
+def prepare_one_band_raster(work):
+    write(os.path.join(work, "one.tif"), [np.full((64, 64), 900, np.uint16)], nodata=0)
+
+
+def prepare_one_class_store(work):
+    if os.path.isdir(os.path.join(work, "one.labels")):
+        return
+    lines = open(os.path.join(work, "sites.csv")).read().splitlines()
+    write_text(work, "one.csv", "\n".join([lines[0]] + [line for line in lines[1:] if line.endswith(",wet")]) + "\n")
+    label = replaced(replaced(LABEL, "source: sites.csv", "source: one.csv"), "output: sites.labels", "output: one.labels")
+    write_text(work, "one-label.yaml", replaced(label, "classes: [dry, wet]", "classes: [wet]"))
+    run = run_tinct(work, "label", "one-label.yaml")
+    assert run.returncode == 0, run.stderr
 
 
 def prepare_text_raster(work):
@@ -79,6 +120,60 @@ def prepare_run_without_encoder(work):
 def prepare_text_encoder(work):
     os.makedirs(os.path.join(work, "runs", "text-pre"), exist_ok=True)
     write_text(work, "runs/text-pre/encoder.pt", "plain text, not an archive")
+
+
+def band_files_scene(pair):
+    files = ", ".join(f"{band}: f-{band}.tif" for band in BAND_NAMES)
+    return replaced(pair, "{path: scene.tif, bands: [blue, green, red, nir, swir], date: 2026-05-05}",
+                    "{files: {" + files + "}, date: 2026-05-05}")
+
+
+def study_cases():
+    st = STUDY
+    files = {"study-base.yaml": replaced(FINETUNE, "runs/sweep-fine", "runs/unused")}
+
+    def study(name, old, new, code, phrase):
+        return case(name, ["study", "s.yaml"], code, phrase, {**files, "s.yaml": replaced(st, old, new)})
+    yield study("study base config missing", "finetune: study-base.yaml", "finetune: absent.yaml", 2, "absent.yaml")
+    yield study("study without arms", ARM, "", 2, "arms")
+    yield study("study ensemble of one arm", ARM, ARM + "  - {name: both, ensemble: [scratch]}\n", 2,
+                "an ensemble needs at least two member arms")
+    yield study("study arm sets the output", "{name: scratch, ", "{name: scratch, output: elsewhere, ", 2,
+                "is set by the study")
+    yield study("study arm from a missing pretrain run", "{from: scratch, model: {encoder: compact, width: 0.5}}",
+                "{from: pretrain, run: runs/absent}", 2, "runs/absent")
+    yield study("study budgets empty", "budgets: [all]", "budgets: []", 2, "budgets")
+    yield study("study budget text", "budgets: [all]", "budgets: [many]", 2, "budgets")
+    yield study("study folds zero", "folds: 2", "folds: 0", 2, "folds")
+    yield study("study compares an unknown arm", "folds: 2", "folds: 2\ncompare: [[scratch, pretrained]]", 2,
+                '"pretrained"')
+    yield study("study parallel zero", "folds: 2", "folds: 2\nparallel: 0", 2, "parallel")
+    yield study("study seeds text", "seeds: [1]", "seeds: [one]", 2, "seeds")
+    yield study("study output under a file", "output: studies/sweep", "output: pair.yaml/study", 1, "pair.yaml")
+
+
+def map_cases():
+    yield case("map run missing", ["map", "runs/nothing", "inputs.tif", "--out", "maps/new"], 2, "runs/nothing")
+    yield case("map a pretrain run", ["map", "runs/pre", "inputs.tif", "--out", "maps/new"], 2, "model.pt")
+    yield case("map raster missing", ["map", "runs/fine", "absent.tif", "--out", "maps/new"], 2, "absent.tif")
+    yield case("map raster not a raster", ["map", "runs/fine", "fake.tif", "--out", "maps/new"], 1,
+               "fake.tif: not a readable raster", None, prepare_text_raster)
+    yield case("map raster of one band", ["map", "runs/fine", "one.tif", "--out", "maps/new"], 2, "one.tif",
+               None, prepare_one_band_raster)
+    yield case("map without --out", ["map", "runs/fine", "inputs.tif"], 2, "--out")
+    yield case("map output exists", ["map", "runs/fine", "inputs.tif", "--out", "maps/old"], 2, "maps/old",
+               None, prepare_map_output)
+    yield case("map output under a file", ["map", "runs/fine", "inputs.tif", "--out", "pair.yaml/map"], 1,
+               "pair.yaml/map")
+    yield case("map stride zero", ["map", "runs/fine", "inputs.tif", "--out", "maps/new", "--stride", "0"], 2,
+               "--stride")
+    yield case("map mode unknown", ["map", "runs/fine", "inputs.tif", "--out", "maps/new", "--mode", "fast"], 2,
+               "--mode")
+    yield case("map points file missing", ["map", "runs/fine", "inputs.tif", "--out", "maps/new", "--points",
+                                           "absent.csv"], 2, "absent.csv")
+    yield case("map points x not a number", ["map", "runs/fine", "inputs.tif", "--out", "maps/new", "--points",
+                                             "pts.csv"], 2, "pts.csv line 2", {"pts.csv": "x,y\neast,5299900\n"})
+    yield case("map config of another kind", ["map", "pair.yaml"], 2, "pair.yaml")
 
 
 def cases():
@@ -135,6 +230,8 @@ def cases():
                {"c.yaml": replaced(f, "fold: 2", "fold: 4")})
     yield case("finetune on a pair store", ["finetune", "c.yaml"], 2, "small.pairs",
                {"c.yaml": replaced(f, "sites.labels", "small.pairs")})
+    yield case("finetune on labels of one class", ["finetune", "c.yaml"], 2, "holds one class only",
+               {"c.yaml": replaced(f, "sites.labels", "one.labels")}, prepare_one_class_store)
     yield case("finetune epochs zero", ["finetune", "c.yaml"], 2, "train.epochs",
                {"c.yaml": replaced(f, "epochs: 1", "epochs: 0")})
     yield case("assess missing run", ["assess", "runs/nothing", "--on", "sites.labels"], 2, "runs/nothing")
@@ -157,6 +254,14 @@ def cases():
                {"c.yaml": replaced(pair, "path: scene.tif", "path: tiny.tif")}, prepare_small_scene)
     yield case("pair scene all nodata", ["pair", "c.yaml", "--out", "new.pairs"], 1, "clouded",
                {"c.yaml": replaced(pair, "path: scene.tif", "path: clouded.tif")}, prepare_clouded_scene)
+    yield case("pair band file with a disjoint extent", ["pair", "c.yaml", "--out", "new.pairs"], 1,
+               "f-swir.tif: this band file (x 510000 to 510640", {"c.yaml": band_files_scene(pair)}, prepare_band_files)
+    yield case("pair one clouded scene of two", ["pair", "c.yaml", "--out", "new.pairs"], 0,
+               "skipped 1 of 2 scenes",
+               {"c.yaml": replaced(pair, "date: 2026-05-05}]", "date: 2026-05-05},\n"
+                                   "         {path: clouded.tif, bands: [blue, green, red, nir, swir], date: 2026-05-06}]")},
+               prepare_clouded_scene)
+    yield case("pair output under a file", ["pair", "pair.yaml", "--out", "pair.yaml/new.pairs"], 1, "pair.yaml/new.pairs")
     yield case("pair chip size zero", ["pair", "c.yaml", "--out", "new.pairs"], 2, "chips.size",
                {"c.yaml": replaced(pair, "size: 32", "size: 0")})
     yield case("pair input band unknown", ["pair", "c.yaml", "--out", "new.pairs"], 2, "nir2",
@@ -187,6 +292,10 @@ def cases():
                {"c.yaml": m + "runs: [runs/fine, runs/nothing]\n"})
     yield case("map budget without arm", ["map", "runs/fine", "tiny.tif", "--out", "maps/sweep", "--budget", "3"],
                2, "give --arm ARM too", None, prepare_small_scene)
+    yield case("label output under a file", ["label", "label.yaml", "--out", "label.yaml/new.labels"], 1,
+               "label.yaml/new.labels")
+    yield from study_cases()
+    yield from map_cases()
 
 
 def snapshot(work):
@@ -204,14 +313,16 @@ CRASH_SIGNS = ("terminate called", "frame #", "Exception raised from", "unexpect
 with tempfile.TemporaryDirectory() as work:
     ok, message = make_stores(work)
     checks.check(ok, message)
+    write_input_stack(work)
     runs = [("pretrain", pretrain_config(work, "pre", steps=2, every=2)),
             ("finetune", finetune_config(work, "fine", epochs=1))] if ok else []
     for command, config in runs:
         run = run_tinct(work, command, config)
         checks.check(run.returncode == 0, f"{command} for the sweep: {run.stderr[-600:]}")
-    count = 0
+    count, commands = 0, set()
     for item in (cases() if ok else []):
         count += 1
+        commands.add(next((a for a in item["args"] if not a.startswith("-") and not a.isdigit()), ""))
         if item["prepare"]:
             item["prepare"](work)
         for name, text in item["files"].items():
@@ -222,7 +333,7 @@ with tempfile.TemporaryDirectory() as work:
         text = run.stderr + run.stdout
         checks.check(run.returncode == item["code"], f"{what}: exit {item['code']}, got {run.returncode}:\n{text[-700:]}")
         checks.check(item["phrase"] in text, f"{what}: the message says '{item['phrase']}':\n{text[-700:]}")
-        crash = [sign for sign in CRASH_SIGNS if sign in text]
+        crash = [sign for sign in CRASH_SIGNS if sign in text] + re.findall(r"\d{40,}", text)
         checks.check(not crash, f"{what}: no crash ({crash}):\n{text[-700:]}")
         new = snapshot(work) - before
         half = sorted(n for n in new if ".partial" in n or ".tmp." in n or n.endswith(".previous"))
@@ -230,9 +341,12 @@ with tempfile.TemporaryDirectory() as work:
         if item["code"] == 2:
             blocking = sorted(n for n in new if n.startswith("runs/") and n.endswith("run.yaml"))
             checks.check(not blocking, f"{what}: a usage error leaves no run folder behind: {blocking}")
-        for gone in ("runs/sweep", "runs/sweep-fine", "broken.pairs", "new.pairs", "new.labels"):
+        for gone in ("runs/sweep", "runs/sweep-fine", "runs/unused", "broken.pairs", "new.pairs", "new.labels", "maps",
+                     "studies"):
             shutil.rmtree(os.path.join(work, gone), ignore_errors=True)
     checks.check(count >= 40, f"at least 40 malformed inputs ({count})")
+    every = {"survey", "pair", "pretrain", "label", "finetune", "assess", "study", "map", "export", "check"}
+    checks.check(not ok or every <= commands, f"every command has bad input: missing {sorted(every - commands)}")
     print(f"{count} malformed inputs")
 
 checks.finish()

@@ -8,76 +8,21 @@ and model.pt bytes. Points are found by tracing an uninterrupted run first, so t
 depend on how many other calls the run makes."""
 import csv
 import os
-import re
 import shutil
-import subprocess
 import sys
 import tempfile
 
 import yaml
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
+from kill_points import STRACE, files_of, kill_point, killed_run, renamed_by, traced_calls  # noqa: E402
 from synthetic import Checks  # noqa: E402
-from tiny_project import (finetune_config, make_stores, pretrain_config, run_tinct,  # noqa: E402
-                          tinct_command)
+from tiny_project import finetune_config, make_stores, pretrain_config, run_tinct  # noqa: E402
 
-STRACE = shutil.which("strace")
 checks = Checks()
-SYSCALLS = "write,rename,renameat,renameat2"
-
-
-def traced_calls(work, args):
-    """Runs tinct under strace; returns [(pid, syscall, path)] of the writes and renames of every process."""
-    log = os.path.join(work, "trace.txt")
-    run = subprocess.run([STRACE, "-f", "-qq", "-y", "-s", "0", "-o", log, "-e", f"trace={SYSCALLS}",
-                          *tinct_command(*args)], capture_output=True, text=True, cwd=work)
-    calls = []
-    for line in open(log):
-        match = re.match(r"(\d+)\s+(\w+)\((.*)", line)
-        if not match:
-            continue
-        pid, name, rest = match.groups()
-        path = re.findall(r"<([^>]*)>", rest)[:1] if name == "write" else re.findall(r'"([^"]*)"', rest)[-1:]
-        calls.append((int(pid), name, path[0] if path else ""))
-    return run, calls
-
-
-def kill_point(calls, name, path_part, nth=1):
-    """The `when` count strace needs to kill at the nth `name` call on a path containing
-    path_part: injection counts each syscall per traced process (thread)."""
-    seen = 0
-    for i, (pid, call, path) in enumerate(calls):
-        # A rename is matched by its destination, a write by the file it writes into.
-        if call == name and (path.endswith(path_part) if call.startswith("rename") else path_part in path):
-            seen += 1
-            if seen == nth:
-                return pid, sum(1 for p, c, _ in calls[:i + 1] if p == pid and c == call)
-    return None, None
-
-
-def renamed_by(calls, part):
-    """Which rename system call glibc used for the path (rename, renameat or renameat2)."""
-    return next((c for _, c, p in calls if c.startswith("rename") and part in p), "rename")
-
-
-def killed_run(work, args, name, when):
-    return subprocess.run([STRACE, "-f", "-qq", "-o", "/dev/null", "-e", f"trace={name}",
-                           "-e", f"inject={name}:signal=KILL:when={when}", *tinct_command(*args)],
-                          capture_output=True, text=True, cwd=work)
-
 
 # A label store's log.txt holds times and paths, so stores are compared without it.
 STORE_LOG = ("log.txt",)
-
-
-def files_of(folder, skip=()):
-    out = {}
-    for root, _, names in os.walk(folder):
-        for n in names:
-            rel = os.path.relpath(os.path.join(root, n), folder)
-            if rel not in skip:
-                out[rel] = open(os.path.join(root, n), "rb").read()
-    return out
 
 
 def metrics(folder):

@@ -99,6 +99,15 @@ def make_stores(work):
     return True, ""
 
 
+def write_input_stack(work, name="inputs.tif"):
+    """The scene's nir and swir bands as one raster: what a run on the stores takes, for `tinct map RUN RASTER`."""
+    from osgeo import gdal
+    scene = gdal.Open(os.path.join(work, "scene.tif"))
+    bands = [scene.GetRasterBand(i).ReadAsArray() for i in (4, 5)]
+    write(os.path.join(work, name), bands, origin=ORIGIN, nodata=0)
+    return name
+
+
 def flip_bytes(path, offset, count=8):
     with open(path, "r+b") as f:
         f.seek(offset)

@@ -55,6 +55,30 @@ TEST_CASE("band files in different CRS are refused") {
   CHECK_THROWS_WITH(tinct::shared_grid({&a, &b}, 10), Contains("CRS differs"));
 }
 
+TEST_CASE("a band file whose extent is disjoint from the others is the one named") {
+  TempFolder folder;
+  TestRasterSpec far;  // 8 x 6 at 10 m, 10 km east of the others
+  far.origin_x = 510000;
+  const auto a = tinct::Raster::open(tinct::testing::write_test_raster(folder / "a.tif", TestRasterSpec{}));
+  const auto b = tinct::Raster::open(tinct::testing::write_test_raster(folder / "b.tif", TestRasterSpec{}));
+  const auto odd = tinct::Raster::open(tinct::testing::write_test_raster(folder / "odd.tif", far));
+  const auto named = [](const std::vector<const tinct::Raster*>& rasters) {
+    try {
+      tinct::shared_grid(rasters, 10);
+    } catch (const tinct::Error& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  for (const auto& rasters : {std::vector<const tinct::Raster*>{&a, &odd}, std::vector{&odd, &a, &b},
+                              std::vector{&a, &odd, &b}, std::vector{&a, &b, &odd}}) {
+    const std::string message = named(rasters);
+    CHECK_THAT(message, Contains((folder / "odd.tif").string() + ": this band file (x 510000 to 510080, y 5299940 to "
+                                 "5300000) shares no area"));
+    CHECK_THAT(message, Contains("a.tif") && !Contains("e+"));
+  }
+}
+
 TEST_CASE("a scene reads aligned bands with NaN for nodata and masked pixels") {
   TempFolder folder;
   TestRasterSpec red;  // 8 x 6, value 1000 + 10 r + c

@@ -13,6 +13,7 @@
 #include "chips/store_reader.hpp"
 #include "chips/store_writer.hpp"
 #include "temp_folder.hpp"
+#include "util/csv_field.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
@@ -545,6 +546,22 @@ TEST_CASE("chips.csv quotes commas, quotes and line breaks and reads them back",
   CHECK(store.manifest().scenes[1].crs == "WKT B");
   for (int i = 0; i < 3; ++i) check_records_equal(store.record(i), chips[i].record);
   CHECK_THROWS_WITH(store.colour(0), Contains("has no colour"));
+}
+
+TEST_CASE("a damaged chips.csv row says what is wrong with its quotes", "[store]") {
+  // RFC 4180, section 2: a field with a quote is enclosed in quotes, its quotes doubled.
+  const std::string ok = "0,s,1,2,3,4,2023-06-12,1,b\n";
+  CHECK(tinct::parse_chip_row(ok, false, "row 2").scene == "s");
+  CHECK_THROWS_WITH(tinct::parse_chip_row("0,s\"x,1,2,3,4,2023-06-12,1,b\n", false, "row 2"),
+                    Contains("row 2: a quote inside an unquoted field") && Contains("rebuild the store"));
+  CHECK_THROWS_WITH(tinct::parse_chip_row("0,\"s,1,2,3,4,2023-06-12,1,b\n", false, "row 2"),
+                    Contains("row 2: a quoted field is not closed"));
+  CHECK_THROWS_WITH(tinct::parse_chip_row("0,\"s\"x,1,2,3,4,2023-06-12,1,b\n", false, "row 2"),
+                    Contains("row 2: text after a closing quote"));
+  std::string problem;
+  CHECK_FALSE(tinct::parse_csv_row("a,\"b", &problem).has_value());
+  CHECK(problem == "a quoted field is not closed");
+  CHECK(*tinct::parse_csv_row("a,\"b,\"\"c\"\"\",") == std::vector<std::string>{"a", "b,\"c\"", ""});
 }
 
 TEST_CASE("a label outside the classes is refused at finish", "[store]") {

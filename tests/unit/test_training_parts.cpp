@@ -148,7 +148,19 @@ TEST_CASE("a non-finite loss updates nothing and the failure names the last chec
   CHECK(torch::equal(model->weight, before));
   tinct::save_checkpoint(tinct::checkpoint_path(folder.path(), 4), *model, optimizer, {4, "spec", "hash", {}});
   CHECK_THROWS_WITH(tinct::fail_non_finite("pretrain", "step 5", folder.path()),
-                    Contains("not finite at step 5") && Contains("step-00000004.pt") && Contains("--resume"));
+                    Contains("not finite at step 5") && Contains("step-00000004.pt") && Contains("--resume") &&
+                        Contains("train.lr"));
+}
+
+TEST_CASE("a non-finite loss before the first checkpoint suggests --force, not --resume") {
+  TempFolder folder;
+  try {
+    tinct::fail_non_finite("pretrain", "step 2", folder.path() / "checkpoints");
+    FAIL("expected an error");
+  } catch (const tinct::Error& e) {
+    CHECK_THAT(e.what(), Contains("No checkpoint was written yet") && Contains("--force") && Contains("train.lr"));
+    CHECK_THAT(e.what(), !Contains("run the same command with --resume"));
+  }
 }
 
 TEST_CASE("the first stop signal is noted, a second one ends the process, and handlers are restored") {
@@ -222,6 +234,56 @@ TEST_CASE("resuming with another config is refused before anything is written") 
   const YAML::Node run_yaml = YAML::LoadFile((path / "run.yaml").string());
   CHECK(run_yaml["status"].as<std::string>() == "stopped");
   CHECK(run_yaml["reason"].as<std::string>() == "stopped after step 2");
+}
+
+TEST_CASE("resuming with another learning rate is allowed and recorded in run.yaml, twice") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  const std::string config = "config: pretrain\ntrain: {lr: 0.002, batch: 8, warmup: 2}\n";
+  {
+    tinct::RunLifecycle run({"pretrain", path, false, false, config, 1});
+    run.execute([] { return tinct::RunOutcome{tinct::RunStatus::stopped, "stopped after step 2"}; });
+  }
+  const std::string lower = "config: pretrain\ntrain: {lr: 0.001, batch: 8, warmup: 3}\n";
+  {
+    tinct::RunLifecycle run({"pretrain", path, false, true, lower, 1});
+    run.execute([] { return tinct::RunOutcome{tinct::RunStatus::stopped, "stopped after step 4"}; });
+  }
+  CHECK(read_text(path / "config.resolved.yaml") == lower);
+  {
+    const std::string lowest = "config: pretrain\ntrain: {lr: 0.0005, batch: 8, warmup: 3}\n";
+    tinct::RunLifecycle run({"pretrain", path, false, true, lowest, 1});
+    run.execute([] { return tinct::RunOutcome{}; });
+  }
+  const YAML::Node changes = YAML::LoadFile((path / "run.yaml").string())["resumed_with_changes"];
+  REQUIRE(changes.size() == 3);
+  CHECK(changes[0]["key"].as<std::string>() == "train.lr");
+  CHECK(changes[0]["old"].as<std::string>() == "0.002");
+  CHECK(changes[0]["new"].as<std::string>() == "0.001");
+  CHECK(changes[1]["key"].as<std::string>() == "train.warmup");
+  CHECK(changes[1]["new"].as<std::string>() == "3");
+  CHECK(changes[2]["old"].as<std::string>() == "0.001");
+  CHECK(changes[2]["new"].as<std::string>() == "0.0005");
+  CHECK_FALSE(changes[2]["resumed"].as<std::string>().empty());
+}
+
+TEST_CASE("resuming with a changed key other than the learning rate names it and writes nothing") {
+  TempFolder folder;
+  const auto path = folder / "run";
+  {
+    tinct::RunLifecycle run({"pretrain", path, false, false, "config: pretrain\ntrain: {lr: 0.002, batch: 8}\n", 1});
+    run.execute([] { return tinct::RunOutcome{tinct::RunStatus::stopped, "stopped after step 2"}; });
+  }
+  const std::string before = read_text(path / "run.yaml");
+  try {
+    tinct::RunLifecycle({"pretrain", path, false, true, "config: pretrain\ntrain: {lr: 0.001, batch: 16}\n", 1});
+    FAIL("expected an error");
+  } catch (const tinct::Error& e) {
+    CHECK(e.exit_code() == 2);
+    CHECK_THAT(e.what(), Contains("train.batch (8 -> 16)") && Contains("only the learning rate"));
+    CHECK_THAT(e.what(), !Contains("train.lr ("));
+  }
+  CHECK(read_text(path / "run.yaml") == before);
 }
 
 TEST_CASE("archives round-trip a model's description and name their kind when misplaced") {

@@ -6,6 +6,7 @@
 #include <CLI/CLI.hpp>
 
 #include <functional>
+#include <limits>
 
 namespace tinct {
 
@@ -13,6 +14,10 @@ struct GlobalOptions {
   int threads = 0;  // 0 = all cores
   bool quiet = false;
 };
+
+// For counts on the command line (--stop-after, --world, --stride): CLI11's PositiveNumber
+// would print its bound as a 309-digit number.
+inline const CLI::Range kCountRange(1, std::numeric_limits<int>::max());
 
 using CommandRun = std::function<void()>;
 using CommandSetup = CommandRun (*)(CLI::App& command, const GlobalOptions& global);

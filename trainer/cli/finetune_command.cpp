@@ -42,12 +42,12 @@ CommandRun setup_finetune(CLI::App& command, const GlobalOptions& global) {
   resume->excludes(force);
   command.add_option("--stop-after", options->stop_after,
                      "Stop after this many epochs in all (with a checkpoint); --resume continues")
-      ->check(CLI::PositiveNumber);
+      ->check(kCountRange);
   command.add_option("--world", options->world,
                      "Run as this many processes of one data-parallel job on this machine (loopback); "
                      "train.batch stays the global batch. Under srun or with RANK/WORLD_SIZE/MASTER_ADDR set, "
                      "each process joins the job without it")
-      ->check(CLI::PositiveNumber);
+      ->check(kCountRange);
   return [options, &global] { run_finetune_command(*options, global); };
 }
 

@@ -78,7 +78,7 @@ CommandRun setup_map(CLI::App& command, const GlobalOptions& global) {
                      "budget, lowest fold unless --budget, --fold)");
   command.add_option("--budget", options->budget, "With --arm: the budget's folder name (all, 15, ...)");
   command.add_option("--fold", options->fold, "With --arm: the fold")->check(CLI::NonNegativeNumber);
-  command.add_option("--stride", options->stride, "Pixels between window centres")->check(CLI::PositiveNumber);
+  command.add_option("--stride", options->stride, "Pixels between window centres")->check(kCountRange);
   command.add_flag("--force", options->force, "Replace an existing output folder");
   return [options, &global] { run_map_command(*options, global); };
 }

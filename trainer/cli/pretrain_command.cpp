@@ -43,12 +43,12 @@ CommandRun setup_pretrain(CLI::App& command, const GlobalOptions& global) {
   command.add_option("--stop-after", options->stop_after,
                      "Stop after this many steps in all (with a checkpoint), e.g. to fit a time slot; "
                      "--resume continues")
-      ->check(CLI::PositiveNumber);
+      ->check(kCountRange);
   command.add_option("--world", options->world,
                      "Run as this many processes of one data-parallel job on this machine (loopback); "
                      "train.batch stays the global batch. Under srun or with RANK/WORLD_SIZE/MASTER_ADDR set, "
                      "each process joins the job without it")
-      ->check(CLI::PositiveNumber);
+      ->check(kCountRange);
   return [options, &global] { run_pretrain_command(*options, global); };
 }
 

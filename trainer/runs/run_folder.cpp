@@ -105,6 +105,20 @@ std::string existing_run_hint(const fs::path& path, const std::string& status) {
 
 }  // namespace
 
+std::vector<RunFolder::ResumeChange> RunFolder::recorded_resume_changes(const std::string& run_yaml) {
+  std::vector<ResumeChange> changes;
+  try {
+    const YAML::Node list = YAML::Load(run_yaml)["resumed_with_changes"];
+    for (const YAML::Node& item : list) {
+      changes.push_back({{item["key"].as<std::string>(), item["old"].as<std::string>(), item["new"].as<std::string>()},
+                         item["resumed"].as<std::string>()});
+    }
+  } catch (const YAML::Exception&) {
+    // A run.yaml edited by hand loses its history of changes, not the run.
+  }
+  return changes;
+}
+
 RunFolder::RunFolder(fs::path path, RunOpening opening)
     : target_(path),
       existed_(fs::exists(path)),
@@ -115,6 +129,10 @@ RunFolder::RunFolder(fs::path path, RunOpening opening)
     fail_usage("run " + path_.string() + " exists (status: " + status + "); " + existing_run_hint(path_, status));
   }
   previous_run_yaml_ = status.empty() ? "" : read_file_text(path_ / "run.yaml");
+  if (opening.resume) {
+    resume_changes_ = recorded_resume_changes(previous_run_yaml_);
+    previous_config_ = read_file_text(path_ / "config.resolved.yaml");
+  }
   if (opening.force && !opening.resume && status.empty()) clear_folder(path_, lock_.lock_file());
   log::set_file(path_ / "log.txt");
   remove_leftover_attempt();
@@ -198,6 +216,8 @@ void RunFolder::undo_start() {
     return;
   }
   if (!previous_run_yaml_.empty()) {
+    // A resume with another learning rate that never began leaves the run as it was.
+    if (!previous_config_.empty()) write_file_atomic(file("config.resolved.yaml"), previous_config_);
     write_file_atomic(file("run.yaml"), previous_run_yaml_);
     return;
   }
@@ -211,6 +231,11 @@ void RunFolder::undo_start() {
 }
 
 RunFolder::~RunFolder() { log::close_file(); }  // then lock_ removes the lock file
+
+void RunFolder::record_resume_changes(const std::vector<ConfigChange>& changes) {
+  const std::string now = utc_now();
+  for (const ConfigChange& change : changes) resume_changes_.push_back({change, now});
+}
 
 std::string RunFolder::write_config(const std::string& resolved_yaml) {
   write_file_atomic(file("config.resolved.yaml"), resolved_yaml);
@@ -240,6 +265,15 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
   out << YAML::EndMap;
   out << YAML::Key << "seed" << YAML::Value << seed;
   out << YAML::Key << "config_hash" << YAML::Value << config_hash_;
+  if (!resume_changes_.empty()) {
+    out << YAML::Key << "resumed_with_changes" << YAML::Value << YAML::BeginSeq;
+    for (const ResumeChange& r : resume_changes_) {
+      out << YAML::Flow << YAML::BeginMap << YAML::Key << "key" << YAML::Value << r.change.key;
+      out << YAML::Key << "old" << YAML::Value << r.change.before << YAML::Key << "new" << YAML::Value << r.change.after;
+      out << YAML::Key << "resumed" << YAML::Value << r.resumed << YAML::EndMap;
+    }
+    out << YAML::EndSeq;
+  }
   out << YAML::EndMap;
   write_file_atomic(file("run.yaml"), std::string(out.c_str()) + "\n");
 }

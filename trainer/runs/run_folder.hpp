@@ -13,7 +13,9 @@
 #include <filesystem>
 #include <memory>
 #include <string>
+#include <vector>
 
+#include "runs/config_changes.hpp"
 #include "util/folder_lock.hpp"
 
 namespace tinct {
@@ -46,6 +48,9 @@ class RunFolder {
   // Writes run.yaml with the given status and, unless empty, the reason (why it failed or
   // stopped); the first call records the start, any other status than running the end.
   void write_status(RunStatus status, std::int64_t seed, const std::string& reason = "");
+  // Keys of the config changed on this --resume (the learning rate): run.yaml lists them
+  // under resumed_with_changes, after those of earlier resumes, from the next write_status.
+  void record_resume_changes(const std::vector<ConfigChange>& changes);
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
@@ -56,18 +61,25 @@ class RunFolder {
   void undo_start();
 
  private:
+  struct ResumeChange {
+    ConfigChange change;
+    std::string resumed;  // UTC time of the resume
+  };
   static std::filesystem::path created(const std::filesystem::path& path);
+  static std::vector<ResumeChange> recorded_resume_changes(const std::string& run_yaml);
   void start_replacement();
   void remove_leftover_attempt() const;
 
   std::filesystem::path target_;
   bool existed_ = false;         // the folder was there before this opening
   std::string previous_run_yaml_;
+  std::string previous_config_;  // config.resolved.yaml of a run reopened by --resume
   std::filesystem::path path_;
   FolderLock lock_;
   std::unique_ptr<FolderLock> staging_lock_;
   std::string config_hash_;
   std::string started_;
+  std::vector<ResumeChange> resume_changes_;  // of every resume, oldest first
 };
 
 std::string to_string(RunStatus status);

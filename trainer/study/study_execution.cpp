@@ -45,6 +45,16 @@ std::string recorded_reason(const fs::path& run) {
   }
 }
 
+// A run the study finds finished may still have NAME.partial/ beside it, from a --force
+// replacement killed with the study; the study's lock keeps every other study out.
+void remove_leftover_attempt(const fs::path& run) {
+  const fs::path partial = partial_folder_of(run);
+  std::error_code ec;
+  if (!fs::exists(partial, ec)) return;
+  fs::remove_all(partial, ec);
+  if (!ec) log::info("removed " + partial.string() + ", left by a replacement that did not finish");
+}
+
 Predictions as_predictions(const BaselinePredictions& p, std::size_t from, std::size_t to) {
   Predictions result;
   result.chips.assign(p.chips.begin() + from, p.chips.begin() + to);
@@ -67,10 +77,12 @@ void run_baseline_run(const PlannedRun& run, const fs::path& folder) {
   out.write_status(RunStatus::running, run.cell.seed);
   const BaselinePredictions predicted = run_baseline(chips.chips, chips.train, scored, settings);
   const std::size_t tests = chips.split.test.size();
-  write_assessment(folder, as_predictions(predicted, 0, tests), chips.chips, chips.chips.classes());
-  write_assessment(folder / "validation", as_predictions(predicted, tests, scored.size()), chips.chips,
+  // A run that was there (killed, or --force) is rebuilt beside it in NAME.partial/ and swapped in.
+  write_assessment(out.path(), as_predictions(predicted, 0, tests), chips.chips, chips.chips.classes());
+  write_assessment(out.path() / "validation", as_predictions(predicted, tests, scored.size()), chips.chips,
                    chips.chips.classes());
   out.write_status(RunStatus::done, run.cell.seed);
+  out.finish_replacement();
 }
 
 // The finished fine-tune's model on its validation chips, for temperature scaling.
@@ -111,9 +123,10 @@ void run_ensemble_run(const StudyPlan& plan, const PlannedRun& run, const fs::pa
       members.push_back(read_prediction_table(plan.folder / plan.runs[m].folder / part / "predictions.csv"));
       names.push_back(plan.runs[m].arm);
     }
-    write_prediction_files(folder / part, weighted_mean(members, run.weights, names));
+    write_prediction_files(out.path() / part, weighted_mean(members, run.weights, names));
   }
   out.write_status(RunStatus::done, run.cell.seed);
+  out.finish_replacement();
 }
 
 // Baselines and ensembles run here, quickly; a failure is the run's, not the study's.
@@ -122,6 +135,7 @@ void run_here(const StudyPlan& plan, std::size_t index, const StudyExecution& op
   const fs::path folder = plan.folder / run.folder;
   RunState& state = states[index];
   if (!options.force && finished_with(folder, run.hash)) {
+    remove_leftover_attempt(folder);
     state.ok = state.skipped = true;
     return;
   }
@@ -184,6 +198,7 @@ std::vector<std::size_t> finetunes_to_run(const StudyPlan& plan, const StudyExec
     if (run.kind != PlannedKind::deep) continue;
     const fs::path folder = plan.folder / run.folder;
     if (!options.force && run_finished(folder, run.hash)) {
+      remove_leftover_attempt(folder);
       states[i].ok = true;
       if (!fs::exists(folder / "validation" / "predictions.csv")) finish_finetune(plan, run, ChildExit{}, states[i]);
       states[i].skipped = states[i].ok;

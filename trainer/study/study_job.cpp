@@ -13,6 +13,7 @@
 #include "study/study_ranks.hpp"
 #include "study/study_summary.hpp"
 #include "training/parallel_launch.hpp"
+#include "util/atomic_file.hpp"
 #include "util/error.hpp"
 #include "util/folder_lock.hpp"
 #include "util/log.hpp"
@@ -87,6 +88,7 @@ void run_study(const fs::path& config_file, const StudyOptions& options) {
   fs::create_directories(plan.folder);
   FolderLock lock(plan.folder, plan.folder / "lock", "wait for the other study to finish");
   log::set_file(plan.folder / "log.txt");
+  remove_orphaned_temporaries(plan.folder);  // of a study killed mid-write
   log::info(matrix_line(plan));
   for (const std::string& warning : plan.warnings) log::warning(warning);
 

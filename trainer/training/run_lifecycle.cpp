@@ -1,6 +1,12 @@
 #include "training/run_lifecycle.hpp"
 
 #include <c10/util/Exception.h>
+#include <yaml-cpp/yaml.h>
+
+#include <algorithm>
+#include <fstream>
+#include <iterator>
+#include <vector>
 
 #include "distributed/process_group.hpp"
 #include "util/error.hpp"
@@ -12,25 +18,63 @@ namespace fs = std::filesystem;
 namespace tinct {
 namespace {
 
+const std::vector<std::string> kRateKeys{"train.lr", "train.min_lr", "train.warmup", "freeze.encoder_lr_scale"};
+
 // c10's messages carry a C++ backtrace that helps nobody reading run.yaml.
 std::string message_of(const std::exception& error) {
   if (const auto* c10_error = dynamic_cast<const c10::Error*>(&error)) return c10_error->what_without_backtrace();
   return error.what();
 }
 
+std::string file_text(const fs::path& file) {
+  std::ifstream in(file, std::ios::binary);
+  return std::string(std::istreambuf_iterator<char>(in), {});
+}
+
+// What --resume compares the config with: the resolved config the run started with (or
+// was last resumed with). The learning rate may change (to go on after a non-finite loss
+// with a lower one); anything else would make the resumed run another run.
+std::vector<ConfigChange> changes_on_resume(const RunStart& start, const fs::path& saved) {
+  if (!start.resume || !fs::exists(saved)) return {};
+  std::vector<ConfigChange> changes;
+  try {
+    changes = config_changes(file_text(saved), start.resolved_config);
+  } catch (const YAML::Exception& error) {
+    fail_runtime(saved.string() + " is not readable YAML (" + error.what() + "); the run's saved config is damaged: "
+                 "start a new run (--force, or another output)");
+  }
+  std::vector<ConfigChange> refused;
+  for (const ConfigChange& change : changes) {
+    if (std::find(kRateKeys.begin(), kRateKeys.end(), change.key) == kRateKeys.end()) refused.push_back(change);
+  }
+  if (!refused.empty()) {
+    fail_usage("--resume: the config differs from the one " + start.output.string() +
+               " started with (config.resolved.yaml) in " + describe_changes(refused) +
+               "; only the learning rate (" + rate_keys_text() + ") may change on --resume. Put the other keys "
+               "back to resume, or start a new run (--force, or another output)");
+  }
+  return changes;
+}
+
 }  // namespace
 
+std::string rate_keys_text() {
+  std::string text;
+  for (const std::string& key : kRateKeys) text += (text.empty() ? "" : ", ") + key;
+  return text;
+}
+
 RunLifecycle::RunLifecycle(const RunStart& start) : start_(start) {
-  const fs::path saved = file("config.resolved.yaml");
-  if (start.resume && fs::exists(saved) && sha256_file(saved) != sha256_hex(start.resolved_config)) {
-    fail_usage("--resume: the config differs from the one " + start.output.string() +
-               " started with (config.resolved.yaml); resume with the same config, or start a new run");
-  }
+  const std::vector<ConfigChange> changes = changes_on_resume(start, file("config.resolved.yaml"));
   if (!is_writer()) {
     config_hash_ = sha256_hex(start.resolved_config);
     return;
   }
   folder_ = std::make_unique<RunFolder>(start.output, RunOpening{start.force, start.resume});
+  if (!changes.empty()) {
+    folder_->record_resume_changes(changes);
+    log::info(start.command + ": resumed with " + describe_changes(changes) + " (recorded in run.yaml)");
+  }
   config_hash_ = folder_->write_config(start.resolved_config);
   folder_->write_status(RunStatus::running, static_cast<std::int64_t>(start.seed));
 }

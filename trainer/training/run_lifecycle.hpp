@@ -1,7 +1,7 @@
 // The life of one training run in its folder, the same for every loop: the run folder is
 // opened (locked), the resolved config saved with its hash (on --resume it must equal the
-// one the run started with), run.yaml says running, SIGINT/SIGTERM are caught; at the end
-// run.yaml and log.txt say how it ended (done, stopped, interrupted or failed) and why.
+// one the run started with, but for the learning rate), run.yaml says running,
+// SIGINT/SIGTERM are caught; at the end run.yaml and log.txt say how it ended (done, stopped, interrupted or failed) and why.
 // The one place that decides which process writes: rank 0 of a data-parallel job; the
 // others open nothing in the folder and only read its checkpoints.
 #pragma once
@@ -18,6 +18,9 @@
 namespace tinct {
 
 class ProcessGroup;
+
+// The config keys --resume lets change: "train.lr, train.min_lr, train.warmup, ..."
+std::string rate_keys_text();
 
 struct RunStart {
   std::string command;  // "pretrain", "finetune": begins log lines and messages
@@ -36,7 +39,8 @@ struct RunOutcome {
 
 class RunLifecycle {
  public:
-  // Fails (usage) on --resume with a config other than the run's, before writing anything.
+  // Fails (usage) on --resume with a config other than the run's, before writing anything;
+  // only the learning-rate keys (rate_keys_text()) may differ, and run.yaml records them.
   explicit RunLifecycle(const RunStart& start);
 
   // The open run folder: the writer's only (is_writer()).

@@ -3,6 +3,7 @@
 #include <cmath>
 
 #include "runs/checkpoint.hpp"
+#include "training/run_lifecycle.hpp"
 #include "util/error.hpp"
 
 namespace tinct {
@@ -33,11 +34,16 @@ StepResult TrainStep::run(const std::function<torch::Tensor()>& forward_and_loss
 
 void fail_non_finite(const std::string& command, const std::string& where, const std::filesystem::path& checkpoints) {
   const auto last = latest_checkpoint(checkpoints);
-  fail_runtime(command + ": the loss is not finite at " + where + "; training stopped. The last good checkpoint is " +
-               (last ? last->string() : std::string("none (no checkpoint was written yet)")) +
-               ". Start the run again with a lower train.lr (and train.clip_norm on), or check the stores for "
-               "extreme values: --force replaces this run, or choose another output; --resume continues only with "
-               "the same config");
+  const std::string stopped = command + ": the loss is not finite at " + where + "; training stopped. ";
+  if (last) {
+    fail_runtime(stopped + "Lower train.lr in the config and run the same command with --resume: it continues from " +
+                 last->string() + " at the new rate (on --resume " + rate_keys_text() +
+                 " may change, and run.yaml records the change). If a lower rate does not help, check the stores "
+                 "for extreme values, or start over with train.clip_norm on (--force)");
+  }
+  fail_runtime(stopped + "No checkpoint was written yet, so --resume has nothing to continue from: lower train.lr "
+               "(and turn train.clip_norm on) and start over with --force, or choose another output; or check the "
+               "stores for extreme values");
 }
 
 }  // namespace tinct
