@@ -17,6 +17,9 @@ shift
 all_targets=(config label_csv label_geojson store_manifest chips_csv archive_checksum safetensors)
 targets=("${@:-${all_targets[@]}}")
 jobs=${TINCT_FUZZ_JOBS:-1}
+for target in "${targets[@]}"; do
+  [[ -d tests/fuzz/corpus/$target ]] || { echo "fuzz: no target $target (known: ${all_targets[*]})" >&2; exit 2; }
+done
 
 packages=(clang-14 libclang-rt-14-dev llvm-14)
 missing=()
@@ -51,7 +54,6 @@ run_target() {
 }
 
 for target in "${targets[@]}"; do
-  [[ -d tests/fuzz/corpus/$target ]] || { echo "fuzz: no target $target (tests/fuzz/corpus/$target)" >&2; exit 2; }
   rm -f build-fuzz/fuzz/"$target"/{crash,leak,timeout,oom}-*
   while [[ $(jobs -rp | wc -l) -ge $jobs ]]; do sleep 1; done
   echo "fuzz: $target for ${seconds} s"
