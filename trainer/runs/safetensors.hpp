@@ -13,6 +13,8 @@
 #include <utility>
 #include <vector>
 
+#include "runs/safetensors_layout.hpp"
+
 namespace tinct {
 
 using NamedTensors = std::vector<std::pair<std::string, torch::Tensor>>;
@@ -23,9 +25,8 @@ using NamedTensors = std::vector<std::pair<std::string, torch::Tensor>>;
 void write_safetensors(const std::filesystem::path& path, const NamedTensors& tensors,
                        const std::map<std::string, std::string>& metadata = {});
 
-// The metadata key whose value, when present, is the SHA-256 (hex) of the data section
-// (every tensor's bytes in header order): read_safetensors checks it.
-inline constexpr const char* kDataChecksumKey = "data_sha256";
+// kDataChecksumKey ("data_sha256" in the metadata): the SHA-256 (hex) of the data section
+// (every tensor's bytes in header order), which read_safetensors checks.
 std::string safetensors_data_sha256(const NamedTensors& tensors);
 
 // Tensors in header order; `metadata`, when given, receives "__metadata__" (or is cleared).
