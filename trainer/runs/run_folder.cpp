@@ -240,6 +240,7 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
   out << YAML::EndMap;
   out << YAML::Key << "seed" << YAML::Value << seed;
   out << YAML::Key << "config_hash" << YAML::Value << config_hash_;
+  for (const auto& entry : records_) out << YAML::Key << entry.first << YAML::Value << entry.second;
   out << YAML::EndMap;
   write_file_atomic(file("run.yaml"), std::string(out.c_str()) + "\n");
 }

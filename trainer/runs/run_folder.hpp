@@ -14,6 +14,8 @@
 #include <memory>
 #include <string>
 
+#include <yaml-cpp/yaml.h>
+
 #include "util/folder_lock.hpp"
 
 namespace tinct {
@@ -46,6 +48,9 @@ class RunFolder {
   // Writes run.yaml with the given status and, unless empty, the reason (why it failed or
   // stopped); the first call records the start, any other status than running the end.
   void write_status(RunStatus status, std::int64_t seed, const std::string& reason = "");
+  // A finding of the run kept in run.yaml under `key` from the next write_status on (e.g. the
+  // probe's inner cross-validation), so the record says how the run chose what it chose.
+  void record(const std::string& key, const YAML::Node& value) { records_[key] = YAML::Clone(value); }
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
@@ -68,6 +73,7 @@ class RunFolder {
   std::unique_ptr<FolderLock> staging_lock_;
   std::string config_hash_;
   std::string started_;
+  YAML::Node records_{YAML::NodeType::Map};
 };
 
 std::string to_string(RunStatus status);
