@@ -184,18 +184,23 @@ ProbeFit fit_probe(ClassifierModel& model, const ChipCollection& chips, const st
   return fit;
 }
 
+namespace {
+// 0.1 rather than 0.10000000000000001 (yaml-cpp writes doubles with 17 digits); reads back as a number.
+YAML::Node short_number(double value) { return YAML::Node(format("%.9g", value)); }
+}  // namespace
+
 YAML::Node probe_record(const ProbeFit& fit) {
   YAML::Node node;
   node["readout_features"] = fit.features;
   if (fit.chosen_by.empty()) return node;  // knn: nothing chosen
-  node["l2"] = fit.l2;
+  node["l2"] = short_number(fit.l2);
   node["l2_chosen_by"] = fit.chosen_by;
   if (fit.inner_folds > 0) {
     node["inner_folds"] = fit.inner_folds;
     for (std::size_t i = 0; i < fit.l2_grid.size(); ++i) {
       YAML::Node row;
-      row["l2"] = fit.l2_grid[i];
-      row["log_loss"] = fit.cv_log_loss[i];
+      row["l2"] = short_number(fit.l2_grid[i]);
+      row["log_loss"] = short_number(fit.cv_log_loss[i]);
       node["inner_cv"].push_back(row);
     }
   }
