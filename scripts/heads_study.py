@@ -99,7 +99,8 @@ model: {{encoder: compact, width: 0.5}}
 train: {{steps: {steps}, batch: 32, lr: 0.003, warmup: 20, seed: 1}}
 validation: {{every: {steps}, chips: 64, previews: 0}}
 """)
-        run([tinct, "--threads", threads, "pair", "pair.yaml"], work, "pair")
+        if not os.path.exists(os.path.join(work, "l7.pairs")):
+            run([tinct, "--threads", threads, "pair", "pair.yaml"], work, "pair")
         run([tinct, "--threads", threads, "pretrain", "--force", "pretrain.yaml"], work, "pretrain")
 
 

@@ -15,8 +15,13 @@ writes the features it fitted on (features.csv) and its test predictions (predic
 2. head {kind: linear_probe, l2: 0.1, pool: centre}: scikit-learn's LogisticRegression(C = 1 /
    l2 = 10, multinomial, lbfgs) on the same standardised features (balanced budget: all
    sample weights 1) must give the same test probabilities within 1e-3.
-3. head {kind: linear_probe} (l2 auto): the run names the l2 its inner cross-validation chose,
-   one of the grid's values, and its test macro F1 is above chance (1/3).
+3. head {kind: linear_probe} (l2 auto): run.yaml records the inner cross-validation (l2
+   chosen, folds, each grid value's held-out log loss) and features.csv each training row's
+   inner fold. On the same standardised-per-inner-fold features and the same folds,
+   scikit-learn (Pipeline(StandardScaler, LogisticRegression(C = 1 / l2)), cross_val_predict
+   with PredefinedSplit, log_loss pooled over the held-out rows) gives every grid value's
+   loss within 1e-3, and the l2 tinct chose has scikit-learn's lowest loss (ties within 1e-6
+   to the stronger l2, as the grid is ordered). Test macro F1 above chance (1/3).
 """
 import csv
 import json
@@ -28,7 +33,12 @@ import tempfile
 
 import numpy as np
 from osgeo import gdal
+import yaml
 from sklearn.linear_model import LogisticRegression
+from sklearn.metrics import log_loss
+from sklearn.model_selection import PredefinedSplit, cross_val_predict
+from sklearn.pipeline import make_pipeline
+from sklearn.preprocessing import StandardScaler
 from sklearn.neighbors import KNeighborsClassifier
 
 sys.path.insert(0, os.path.join(os.environ["TINCT_SOURCE"], "tests", "support"))
@@ -90,6 +100,23 @@ train: {{seed: 2}}
     return (train - mean) / sd, y[role == "train"], (test - mean) / sd, p, predicted, log, metrics
 
 
+def raw_training_rows(folder):
+    """The probe's training rows as fitted: raw features, class and inner fold (features.csv)."""
+    rows = [r for r in read_csv(os.path.join(folder, "features.csv")) if r["role"] == "train"]
+    columns = [c for c in rows[0] if re.fullmatch(r"f\d+", c)]
+    X = np.array([[float(r[c]) for c in columns] for r in rows])
+    return X, np.array([int(r["class"]) for r in rows]), np.array([int(r["inner_fold"]) for r in rows])
+
+
+def sklearn_inner_cv(X, y, inner_fold, l2):
+    """Pooled held-out log loss of scikit-learn's logistic regression over the given folds,
+    standardised with each fold's training rows (population sd, as StandardScaler)."""
+    model = make_pipeline(StandardScaler(), LogisticRegression(C=1.0 / l2, multi_class="multinomial",
+                                                              solver="lbfgs", tol=1e-10, max_iter=100000))
+    held_out = cross_val_predict(model, X, y, cv=PredefinedSplit(inner_fold), method="predict_proba")
+    return log_loss(y, held_out, labels=[0, 1, 2])
+
+
 with tempfile.TemporaryDirectory() as work:
     with open(os.path.join(work, "sites.csv"), "w") as f:
         f.write("id,x,y,cover\n")
@@ -134,12 +161,28 @@ chips: {{size: 16, min_valid: 0.9, block_size: 2000}}
 
     # 3. linear probe, l2 by inner cross-validation
     _, _, _, _, _, log, metrics = finetune(work, "auto", "{kind: linear_probe, pool: hypercolumn}")
+    folder = os.path.join(work, "runs", "auto")
+    record = yaml.safe_load(open(os.path.join(folder, "run.yaml"))).get("probe", {})
+    checks.check(record.get("l2_chosen_by") == "inner_cv", f"run.yaml's probe record: {record}")
     chosen = re.search(r"linear probe on \d+ features, l2 ([0-9.e+-]+) \((\d)-fold inner cross-validation\)", log)
     checks.check(chosen is not None, "linear probe: the log does not name the l2 inner cross-validation chose")
-    if chosen:
-        print(f"linear probe (l2 auto): l2 {chosen.group(1)} by {chosen.group(2)}-fold inner CV; "
-              f"test macro F1 {metrics['macro_f1']:.3f}")
-        checks.check(float(chosen.group(1)) in (1000, 300, 100, 30, 10, 3, 1, 0.3, 0.1, 0.03, 0.01),
-                     f"l2 {chosen.group(1)} is not a grid value")
+    if record.get("l2_chosen_by") == "inner_cv":
+        X, y, inner_fold = raw_training_rows(folder)
+        counts = np.bincount(y, minlength=3)
+        checks.check((counts == counts[0]).all(), f"budget not balanced ({counts}): sample weights would not be 1")
+        checks.check(sorted(set(inner_fold)) == list(range(record["inner_folds"])),
+                     f"features.csv names inner folds {sorted(set(inner_fold))}, run.yaml {record['inner_folds']}")
+        grid = [row["l2"] for row in record["inner_cv"]]
+        tinct_loss = np.array([row["log_loss"] for row in record["inner_cv"]])
+        sklearn_loss = np.array([sklearn_inner_cv(X, y, inner_fold, l2) for l2 in grid])
+        for l2, ours, theirs in zip(grid, tinct_loss, sklearn_loss):
+            print(f"inner CV l2 {l2:g}: tinct {ours:.5f}, scikit-learn {theirs:.5f}")
+        gap = np.abs(tinct_loss - sklearn_loss).max()
+        checks.check(gap < 1e-3, f"inner-CV log losses differ from scikit-learn's by up to {gap}")
+        best = grid[int(np.flatnonzero(sklearn_loss <= sklearn_loss.min() + 1e-6)[0])]
+        print(f"linear probe (l2 auto): tinct chose l2 {record['l2']:g} by {record['inner_folds']}-fold inner CV, "
+              f"scikit-learn's best {best:g}; test macro F1 {metrics['macro_f1']:.3f}")
+        checks.check(record["l2"] == best, f"tinct chose l2 {record['l2']}, scikit-learn's inner CV {best}")
+        checks.check(chosen is not None and float(chosen.group(1)) == record["l2"], "log and run.yaml disagree")
     checks.check(metrics["macro_f1"] > 0.4, f"linear probe: test macro F1 {metrics['macro_f1']:.3f} near chance")
 checks.finish()

@@ -89,6 +89,12 @@ TEST_CASE("a budget of N per class reads at most N x classes labelled chips befo
   CHECK(all.labelled_chips_read == every.at("train") + every.at("validation"));
   CHECK(all.labelled_chips_read > 10);
   CHECK(every.at("test") == roles.at("test"));
+
+  // A linear probe with l2 by inner cross-validation fits its folds on the budget alone.
+  const tinct::FinetuneResult probe = run(
+      folder, finetune_yaml("runs/probe", "budget: {per_class: 5}\nhead: {pool: centre, kind: linear_probe}\n", 1));
+  CHECK(probe.labelled_chips_read == 10);
+  CHECK(text_of(folder / "runs/probe/run.yaml").find("l2_chosen_by: inner_cv") != std::string::npos);
 }
 
 TEST_CASE("the training seed changes training only: split.csv and the test set stay") {

@@ -360,13 +360,20 @@ std::vector<ChipRef> budgeted_labels(const LabelSplit& split) {
 
 FinetuneResult fit_and_test_probe(RunLifecycle& run, Finetuning& f, const FinetuneData& data, const FinetuneConfig& c) {
   const std::vector<ChipRef> labels = budgeted_labels(data.split);
-  fit_probe(f.model, data.chips, labels, class_weights(c, data.chips, labels), c.train.batch, c.train.seed);
+  data.chips.forget_reads();
+  const ProbeFit fit =
+      fit_probe(f.model, data.chips, labels, class_weights(c, data.chips, labels), c.train.batch, c.train.seed);
+  const std::int64_t labels_read = data.chips.chips_read();  // before features.csv reads the test chips
+  log::info("finetune: " + std::to_string(labels_read) + " labelled chips read for the probe's fit");
   if (run.is_writer()) {
+    run.folder().record("probe", probe_record(fit));
     save_classifier(run.folder().file("model.pt"), f.model, data.artifact);
     write_probe_features(run.folder().file("features.csv"), f.model, data.chips, labels, data.split.test,
-                         c.train.batch);
+                         c.train.batch, fit.inner_fold);
   }
-  return test_best(run, data, EpochState{}, c);
+  FinetuneResult result = test_best(run, data, EpochState{}, c);
+  result.labelled_chips_read = labels_read;
+  return result;
 }
 
 }  // namespace

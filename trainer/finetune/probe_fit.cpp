@@ -17,6 +17,13 @@ const std::vector<double> kL2Grid{1000, 300, 100, 30, 10, 3, 1, 0.3, 0.1, 0.03, 
 constexpr double kDefaultL2 = 1.0;  // without inner CV: scikit-learn's default C = 1
 constexpr int kMaxInnerFolds = 5;
 
+template <typename... Values>
+std::string format(const char* pattern, Values... values) {
+  char text[160];
+  std::snprintf(text, sizeof text, pattern, values...);
+  return text;
+}
+
 struct LogisticFit {
   torch::Tensor weight, bias;  // (K, F), (K) float64
 };
@@ -92,37 +99,44 @@ double held_out_log_loss(const torch::Tensor& x, const torch::Tensor& y, const t
   return loss / weight;
 }
 
+void choose_l2_by_inner_cv(const torch::Tensor& x, const torch::Tensor& y, const torch::Tensor& row_weight,
+                           std::int64_t classes, std::uint64_t seed, ProbeFit& fit) {
+  fit.inner_folds = inner_folds(y, classes);
+  fit.l2 = kDefaultL2;
+  fit.chosen_by = "default";
+  if (fit.inner_folds == 0) return;
+  fit.chosen_by = "inner_cv";
+  fit.inner_fold = inner_fold_of(y, classes, fit.inner_folds, seed);
+  double best = 0;
+  std::string losses;
+  for (double l2 : kL2Grid) {
+    const double loss = held_out_log_loss(x, y, row_weight, classes, l2, fit.inner_fold, fit.inner_folds);
+    fit.l2_grid.push_back(l2);
+    fit.cv_log_loss.push_back(loss);
+    if (fit.cv_log_loss.size() == 1 || loss < best) best = loss, fit.l2 = l2;
+    losses += format(" %g:%.4f", l2, loss);
+  }
+  log::info("finetune: inner cross-validation log loss by l2" + losses);
+}
+
 void fit_linear_probe(ClassifierModel& model, const torch::Tensor& features, const torch::Tensor& y,
                       const torch::Tensor& row_weight, std::uint64_t seed, ProbeFit& fit) {
   const std::int64_t classes = model->spec().classes;
   const torch::Tensor x = features.to(torch::kFloat64);
   fit.l2 = model->spec().head.l2;
-  if (fit.l2 <= 0) {
-    fit.inner_folds = inner_folds(y, classes);
-    fit.l2 = kDefaultL2;
-    if (fit.inner_folds > 0) {
-      const std::vector<int> fold = inner_fold_of(y, classes, fit.inner_folds, seed);
-      double best = 0;
-      for (double l2 : kL2Grid) {
-        const double loss = held_out_log_loss(x, y, row_weight, classes, l2, fold, fit.inner_folds);
-        fit.l2_grid.push_back(l2);
-        fit.cv_log_loss.push_back(loss);
-        if (fit.cv_log_loss.size() == 1 || loss < best) best = loss, fit.l2 = l2;
-      }
-    }
-  }
+  fit.chosen_by = "given";
+  if (fit.l2 <= 0) choose_l2_by_inner_cv(x, y, row_weight, classes, seed, fit);
   const auto [mean, sd] = column_standardisation(x);
   const LogisticFit result = fit_logistic((x - mean) / sd, y, row_weight, classes, fit.l2);
   torch::NoGradGuard no_grad;
   model->linear_probe->set_standardisation(mean.to(torch::kFloat32), sd.to(torch::kFloat32));
   model->linear_probe->fc->weight.copy_(result.weight);
   model->linear_probe->fc->bias.copy_(result.bias);
-  char text[160];
-  std::snprintf(text, sizeof text, "finetune: linear probe on %lld features, l2 %g (%s)",
-                static_cast<long long>(x.size(1)), fit.l2,
-                fit.inner_folds ? (std::to_string(fit.inner_folds) + "-fold inner cross-validation").c_str()
-                                : (model->spec().head.l2 > 0 ? "given" : "default: too few labels for inner folds"));
-  log::info(text);
+  const std::string how = fit.chosen_by == "inner_cv"
+                              ? std::to_string(fit.inner_folds) + "-fold inner cross-validation"
+                              : (fit.chosen_by == "given" ? "given" : "default: too few labels for inner folds");
+  log::info(format("finetune: linear probe on %lld features, l2 %g (", static_cast<long long>(x.size(1)), fit.l2) +
+            how + ")");
 }
 
 std::string number(double value) {
@@ -159,6 +173,7 @@ ProbeFit fit_probe(ClassifierModel& model, const ChipCollection& chips, const st
   for (const ChipRef& ref : train) labels.push_back(chips.class_of(ref));
   const torch::Tensor y = torch::tensor(labels);
   ProbeFit fit;
+  fit.features = features.size(1);
   if (model->knn) {
     model->knn->set_bank(features, y);
     log::info("finetune: knn readout with k " + std::to_string(model->knn->k()) + " over " +
@@ -169,14 +184,38 @@ ProbeFit fit_probe(ClassifierModel& model, const ChipCollection& chips, const st
   return fit;
 }
 
+namespace {
+// 0.1 rather than 0.10000000000000001 (yaml-cpp writes doubles with 17 digits); reads back as a number.
+YAML::Node short_number(double value) { return YAML::Node(format("%.9g", value)); }
+}  // namespace
+
+YAML::Node probe_record(const ProbeFit& fit) {
+  YAML::Node node;
+  node["readout_features"] = fit.features;
+  if (fit.chosen_by.empty()) return node;  // knn: nothing chosen
+  node["l2"] = short_number(fit.l2);
+  node["l2_chosen_by"] = fit.chosen_by;
+  if (fit.inner_folds > 0) {
+    node["inner_folds"] = fit.inner_folds;
+    for (std::size_t i = 0; i < fit.l2_grid.size(); ++i) {
+      YAML::Node row;
+      row["l2"] = short_number(fit.l2_grid[i]);
+      row["log_loss"] = short_number(fit.cv_log_loss[i]);
+      node["inner_cv"].push_back(row);
+    }
+  }
+  return node;
+}
+
 void write_probe_features(const std::filesystem::path& file, ClassifierModel& model, const ChipCollection& chips,
-                          const std::vector<ChipRef>& train, const std::vector<ChipRef>& test, int batch) {
+                          const std::vector<ChipRef>& train, const std::vector<ChipRef>& test, int batch,
+                          const std::vector<int>& inner_fold) {
   std::string text;
   for (const auto& [role, refs] : {std::make_pair("train", &train), std::make_pair("test", &test)}) {
     if (refs->empty()) continue;
     const torch::Tensor features = extract_features(model, chips, *refs, batch).contiguous();
     if (text.empty()) {
-      text = "role,chip,store,class";
+      text = "role,chip,store,class,inner_fold";
       for (std::int64_t f = 0; f < features.size(1); ++f) text += ",f" + std::to_string(f);
       text += "\n";
     }
@@ -184,7 +223,8 @@ void write_probe_features(const std::filesystem::path& file, ClassifierModel& mo
     for (std::size_t i = 0; i < refs->size(); ++i) {
       const ChipRef& ref = (*refs)[i];
       text += std::string(role) + "," + std::to_string(ref.chip) + "," + std::to_string(ref.store) + "," +
-              std::to_string(chips.class_of(ref));
+              std::to_string(chips.class_of(ref)) + "," +
+              (refs == &train && i < inner_fold.size() ? std::to_string(inner_fold[i]) : "");
       for (std::int64_t f = 0; f < features.size(1); ++f) text += "," + number(values[i * features.size(1) + f]);
       text += "\n";
     }

@@ -274,6 +274,7 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
     }
     out << YAML::EndSeq;
   }
+  for (const auto& entry : records_) out << YAML::Key << entry.first << YAML::Value << entry.second;
   out << YAML::EndMap;
   write_file_atomic(file("run.yaml"), std::string(out.c_str()) + "\n");
 }

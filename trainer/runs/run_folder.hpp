@@ -16,6 +16,8 @@
 #include <vector>
 
 #include "runs/config_changes.hpp"
+#include <yaml-cpp/yaml.h>
+
 #include "util/folder_lock.hpp"
 
 namespace tinct {
@@ -51,6 +53,9 @@ class RunFolder {
   // Keys of the config changed on this --resume (the learning rate): run.yaml lists them
   // under resumed_with_changes, after those of earlier resumes, from the next write_status.
   void record_resume_changes(const std::vector<ConfigChange>& changes);
+  // A finding of the run kept in run.yaml under `key` from the next write_status on (e.g. the
+  // probe's inner cross-validation), so the record says how the run chose what it chose.
+  void record(const std::string& key, const YAML::Node& value) { records_[key] = YAML::Clone(value); }
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
@@ -80,6 +85,7 @@ class RunFolder {
   std::string config_hash_;
   std::string started_;
   std::vector<ResumeChange> resume_changes_;  // of every resume, oldest first
+  YAML::Node records_{YAML::NodeType::Map};
 };
 
 std::string to_string(RunStatus status);
