@@ -46,6 +46,9 @@ class RunFolder {
   // Writes run.yaml with the given status and, unless empty, the reason (why it failed or
   // stopped); the first call records the start, any other status than running the end.
   void write_status(RunStatus status, std::int64_t seed, const std::string& reason = "");
+  // The arithmetic of the training step, written into run.yaml from then on (precision:
+  // requested, used, why); never set: no such entry.
+  void set_precision(const std::string& requested, const std::string& used, const std::string& why);
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
@@ -68,6 +71,7 @@ class RunFolder {
   std::unique_ptr<FolderLock> staging_lock_;
   std::string config_hash_;
   std::string started_;
+  std::string precision_requested_, precision_used_, precision_why_;
 };
 
 std::string to_string(RunStatus status);
