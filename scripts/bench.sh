@@ -13,6 +13,7 @@ work=${TINCT_BENCH_DIR:-$(mktemp -d)}
 echo "bench: working in $work"
 /usr/bin/python3 scripts/bench/pair_bench.py "$PWD/build/tinct" "$work"
 /usr/bin/python3 scripts/bench/peer_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
+/usr/bin/python3 scripts/bench/quality_bench.py "$PWD/build/tinct" "$work"
 /usr/bin/python3 scripts/bench/train_options_bench.py "$PWD/build/tinct_train_bench"
 /usr/bin/python3 scripts/bench/pretrain_bench.py "$PWD/build/tinct" "$PWD/build/tinct_train_bench" "$work"
 build/tinct_assess_bench 5000 256 20000

@@ -70,6 +70,25 @@ void for_each_valid(const StoreLayout& layout, std::int64_t chip_count, const st
 
 double reflectance(const StoreBand& band, double stored) { return (stored + band.offset) * band.scale; }
 
+// Count, mean and squared deviations of the reflectances a uint16 histogram counts: the
+// stored values sum exactly in integers, the deviations in two passes over the bins.
+RunningStats moments_of_histogram(const Histogram& histogram, const StoreBand& band) {
+  std::int64_t count = 0, stored_sum = 0;
+  for (std::size_t bin = 0; bin < histogram.size(); ++bin) {
+    count += histogram[bin];
+    stored_sum += histogram[bin] * static_cast<std::int64_t>(bin);
+  }
+  if (count == 0) return RunningStats();
+  const double mean = reflectance(band, static_cast<double>(stored_sum) / static_cast<double>(count));
+  double m2 = 0;
+  for (std::size_t bin = 0; bin < histogram.size(); ++bin) {
+    if (histogram[bin] == 0) continue;
+    const double deviation = reflectance(band, static_cast<double>(bin)) - mean;
+    m2 += static_cast<double>(histogram[bin]) * deviation * deviation;
+  }
+  return RunningStats::from_moments(count, mean, m2);
+}
+
 template <typename ValueOfBin>
 BandStatistics summarise(const BandPass& pass, ValueOfBin value_of_bin) {
   BandStatistics result;
@@ -87,15 +106,16 @@ BandStatistics summarise(const BandPass& pass, ValueOfBin value_of_bin) {
 
 std::vector<BandStatistics> uint16_statistics(const StoreLayout& layout, std::int64_t chip_count,
                                               const std::uint8_t* bands, const std::uint8_t* valid) {
+  // A bin per stored value: the histogram alone holds every moment, so the pass over the
+  // pixels only counts (the store's statistics were an eighth of pair's time with Welford).
   std::vector<BandPass> passes(layout.bands.size());
-  const auto visit = [&](std::int64_t band, std::int64_t, std::int64_t pixel, std::uint16_t stored) {
-    passes[band].add(reflectance(layout.bands[band], stored), pixel);
+  const auto visit = [&](std::int64_t band, std::int64_t, std::int64_t, std::uint16_t stored) {
     ++passes[band].histogram[stored];
   };
   for_each_valid<std::uint16_t>(layout, chip_count, bands, valid, visit);
   std::vector<BandStatistics> result;
   for (std::size_t band = 0; band < passes.size(); ++band) {
-    passes[band].merge_lanes();
+    passes[band].stats = moments_of_histogram(passes[band].histogram, layout.bands[band]);
     const auto value_of_bin = [&](std::size_t bin, std::int64_t) {
       return reflectance(layout.bands[band], static_cast<double>(bin));
     };

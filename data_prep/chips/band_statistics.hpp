@@ -1,8 +1,8 @@
 // Per-band statistics of the valid pixels of a store's bands, in reflectance units,
-// in bounded memory: Welford (RunningStats) for mean and std, and a 65536-bin
-// histogram per band for p02 and p98 with numpy's default (linear) percentile.
-// Exact for uint16 storage (a bin per stored value); for float32 a first pass finds
-// min and max and the percentiles are exact to a bin width, (max - min) / 65536.
+// in bounded memory: a 65536-bin histogram per band for p02 and p98 with numpy's default
+// (linear) percentile. Exact for uint16 storage (a bin per stored value, which also gives
+// mean and std); for float32, Welford (RunningStats) for mean, std, min and max in a first
+// pass, and the percentiles are exact to a bin width, (max - min) / 65536.
 #pragma once
 
 #include <algorithm>

@@ -18,7 +18,8 @@ def machine_line():
             if line.startswith("flags") and not flags:
                 flags = [x for x in line.split(":", 1)[1].split()
                          if x.startswith(("avx", "amx", "fma", "sse4_2"))]
-    return f"{model}, {os.cpu_count()} cores; {' '.join(flags)}"
+    load = " ".join(f"{x:.1f}" for x in os.getloadavg())
+    return f"{model}, {os.cpu_count()} cores, load {load}; {' '.join(flags)}"
 
 
 def has_native_bf16():

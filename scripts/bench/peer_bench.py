@@ -3,7 +3,8 @@
 Same machine, same run, rounds interleaved (the order flips each round), because other
 tenants swing rates by several times between runs. For the default model (compact) and
 resnet18, each with the same decoder, 12 bands, 64 px chips, batch 32 and all cores:
-- compute-only step: forward + backward + AdamW on preloaded tensors;
+- compute-only step: forward + backward + AdamW on preloaded tensors (tinct: as its
+  pretrain runs it, channels-last chips and train.precision auto; the peer: fp32 as written);
 - full loop: tinct pretrain on a store against the peer's DataLoader over memory maps of
   the same store's files.
 Best and median of each side, ratio of bests and of medians. The share of the machine's
@@ -38,8 +39,9 @@ def run(command, **kw):
     return subprocess.run(command, check=True, capture_output=True, text=True, **kw).stdout.split()
 
 
-def tinct_step(bench, encoder, extra=()):
-    out = run([bench, encoder, str(BANDS), str(CHIP), str(BATCH), str(STEPS[encoder][0]), *extra])
+def tinct_step(bench, encoder):
+    """The step as tinct pretrain runs it: channels-last chips, precision auto."""
+    out = run([bench, encoder, str(BANDS), str(CHIP), str(BATCH), str(STEPS[encoder][0]), "1", "auto"])
     return {"chips": float(out[1]), "gflops": float(out[2]), "mm": float(out[3]), "params": int(out[6])}
 
 

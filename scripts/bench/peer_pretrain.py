@@ -12,10 +12,18 @@ is tinct_train_bench's: preloaded random tensors, plain smooth L1, AdamW lr 1e-3
 Data: the store's bands.bin, colour.bin and valid.bin as numpy memory maps, normalised
 with the manifest's statistics, random flips and quarter turns, through a DataLoader.
 
+Time to quality: tinct's schedule (linear warm-up, then cosine to 0 at the last step), every
+fifth chip held out (tinct holds out spatial blocks, 20 %: on the bench's homogeneous store
+the two sets are alike), validated in eval mode every EVERY steps on the first VAL_CHIPS of
+them with tinct's delta E (CIE76 in Lab units, mean over valid pixels).
+
 usage: peer_pretrain.py step ENCODER BANDS CHIP BATCH STEPS THREADS [channels_last 0|1]
        peer_pretrain.py loop STORE ENCODER BATCH STEPS THREADS WORKERS [channels_last 0|1]
+       peer_pretrain.py quality STORE ENCODER BATCH STEPS THREADS WORKERS WARMUP EVERY VAL_CHIPS
        peer_pretrain.py matmul SIZE THREADS
-Prints one line: `chips_per_s` (step, loop) or `gflops` (matmul)."""
+Prints one line: `chips_per_s` (step, loop) or `gflops` (matmul); quality prints one line
+per validation: `step seconds delta_e` (training seconds so far, validations included)."""
+import math
 import os
 import sys
 import time
@@ -171,6 +179,13 @@ class StoreChips(torch.utils.data.Dataset):
     def __len__(self):
         return len(self.bands)
 
+    def plain(self, i):
+        """Chip i as the model sees it, without augmentation (validation)."""
+        valid = self.valid[i].astype(bool)
+        x = np.where(valid, self.bands[i].astype(np.float32) * self.gain + self.bias, 0).astype(np.float32)
+        y = self.colour[i].astype(np.float32) * self.lab_gain + self.lab_bias
+        return torch.from_numpy(x), torch.from_numpy(y), torch.from_numpy(valid)
+
     def __getitem__(self, i):
         valid = self.valid[i].astype(bool)
         x = np.where(valid, self.bands[i].astype(np.float32) * self.gain + self.bias, 0).astype(np.float32)
@@ -203,6 +218,7 @@ def make_training(encoder, bands, channels_last, plain=False):
         optimizer.step()
         return loss
 
+    step.optimizer = optimizer
     return model, step
 
 
@@ -236,6 +252,44 @@ def full_loop(store, encoder, batch, steps, workers, channels_last):
     return steps * batch / (time.perf_counter() - start)
 
 
+def delta_e(model, data, chips, batch):
+    lab_scale = torch.tensor([100.0, 128.0, 128.0]).view(1, 3, 1, 1)
+    model.eval()
+    total, pixels = 0.0, 0.0
+    with torch.no_grad():
+        for start in range(0, len(chips), batch):
+            x, y, valid = zip(*(data.plain(i) for i in chips[start:start + batch]))
+            x, y, valid = torch.stack(x), torch.stack(y), torch.stack(valid).bool()
+            per_pixel = ((model(x) - y) * lab_scale).double().pow(2).sum(1).sqrt()
+            total += per_pixel[valid].sum().item()
+            pixels += valid.sum().item()
+    model.train()
+    return total / max(pixels, 1)
+
+
+def quality(store, encoder, batch, steps, workers, warmup, every, val_chips):
+    data = StoreChips(store)
+    held = list(range(4, len(data), 5))
+    training = torch.utils.data.Subset(data, [i for i in range(len(data)) if i % 5 != 4])
+    loader = torch.utils.data.DataLoader(training, batch_size=batch, shuffle=True, drop_last=True,
+                                         num_workers=workers, persistent_workers=workers > 0)
+    model, step = make_training(encoder, data.bands.shape[1], False)
+    optimizer = step.optimizer
+    schedule = torch.optim.lr_scheduler.LambdaLR(optimizer, lambda s: (s + 1) / warmup if s < warmup else
+                                                 0.5 * (1 + math.cos(math.pi * (s - warmup) / max(1, steps - warmup))))
+    done, start = 0, time.perf_counter()
+    while done < steps:
+        for x, y, valid in loader:
+            step(x, y, valid)
+            schedule.step()
+            done += 1
+            if done % every == 0 or done == steps:
+                seconds = time.perf_counter() - start
+                print(f"{done} {seconds:.2f} {delta_e(model, data, held[:val_chips], batch):.4f}", flush=True)
+            if done == steps:
+                break
+
+
 def matmul_gflops(size):
     a = np.random.default_rng(0).standard_normal((size, size), dtype=np.float32)
     b = a.T.copy()
@@ -258,6 +312,10 @@ def main(argv):
         store, encoder, (batch, steps, threads, workers) = argv[2], argv[3], map(int, argv[4:8])
         torch.set_num_threads(threads)
         print(f"{full_loop(store, encoder, batch, steps, workers, len(argv) > 8 and argv[8] == '1'):.2f}")
+    elif mode == "quality":
+        store, encoder, (batch, steps, threads, workers, warmup, every, val_chips) = argv[2], argv[3], map(int, argv[4:11])
+        torch.set_num_threads(threads)
+        quality(store, encoder, batch, steps, workers, warmup, every, val_chips)
     elif mode == "matmul":
         print(f"{matmul_gflops(int(argv[2])):.2f}")  # numpy's BLAS; threads from OPENBLAS_NUM_THREADS
     else:

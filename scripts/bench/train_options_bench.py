@@ -2,10 +2,12 @@
 
 tinct_train_bench (forward + backward + AdamW on preloaded tensors, 12 bands, 64 px,
 batch 32, all cores) in interleaved rounds, for the default model and resnet18:
-contiguous fp32 (the reference), channels-last fp32, OpenMP threads pinned to cores
-(OMP_PROC_BIND=close, OMP_PLACES=cores), and bf16 autocast when the processor has
+contiguous fp32 (the reference), channels-last fp32 (chips in channels-last layout, as
+tinct pretrain feeds them), OpenMP threads pinned to cores (OMP_PROC_BIND=close,
+OMP_PLACES=cores), and bf16 autocast, contiguous and channels-last, when the processor has
 native bf16 (AVX512-BF16 or AMX; said so when it has not). Then the step time over batch
-16, 32 and 64, which should grow linearly.
+16, 32 and 64 as tinct pretrain runs it (channels-last, precision auto), which should grow
+linearly.
 
 usage: train_options_bench.py TINCT_TRAIN_BENCH"""
 import os
@@ -44,6 +46,7 @@ def main(bench):
     variants = [("contiguous fp32", {}), ("channels-last fp32", {"channels_last": "1"}),
                 ("contiguous fp32, pinned threads", {"env": PINNED})]
     if bf16:
+        variants.append(("contiguous bf16 autocast", {"precision": "bf16"}))
         variants.append(("channels-last bf16 autocast", {"channels_last": "1", "precision": "bf16"}))
     figures = {}
     for r in range(ROUNDS):
@@ -58,14 +61,15 @@ def main(bench):
     per_batch = {}
     for r in range(ROUNDS):
         for batch in ((16, 32, 64) if r % 2 == 0 else (64, 32, 16)):
-            per_batch.setdefault(batch, []).append(batch / rate(bench, "compact", batch=batch))
+            per_batch.setdefault(batch, []).append(batch / rate(bench, "compact", batch=batch, channels_last="1",
+                                                                precision="auto"))
     base = min(per_batch[16]) / 16
     for batch in (16, 32, 64):
         best = min(per_batch[batch])
         rows.append((f"compact step, batch {batch}", f"best {1000 * best:.0f} ms, median "
                      f"{1000 * statistics.median(per_batch[batch]):.0f} ms ({best / batch / base:.2f}x linear)",
                      "linear: 1.00x"))
-    print_table("pretraining step over batch size", rows)
+    print_table("pretraining step over batch size (channels-last, precision auto)", rows)
 
 
 if __name__ == "__main__":

@@ -2,13 +2,12 @@
 // scripts/bench.sh): chips/s of forward + backward + AdamW step for a model spec,
 // the FLOP/s it achieves (3 x 2 x conv/linear MACs per chip), and a 2048 x 2048
 // float matmul in the same process (best of several) as the machine's reference rate.
-// bf16 runs the forward under LibTorch's CPU autocast to bfloat16.
+// The step is pretraining's: channels-last chips when asked (parameters stay as they are),
+// bf16 runs the forward under LibTorch's CPU autocast (training/precision.hpp).
 //
 // usage: tinct_train_bench ENCODER BANDS CHIP BATCH STEPS [channels_last 0|1] [fp32|bf16]
 // prints: ENCODER chips/s GFLOP/s matmul-GFLOP/s MACs/chip threads parameters
 #include <torch/torch.h>
-
-#include <ATen/autocast_mode.h>
 
 #include <algorithm>
 #include <chrono>
@@ -18,6 +17,7 @@
 #include "models/colourisation_model.hpp"
 #include "models/model_stats.hpp"
 #include "runs/torch_runtime.hpp"
+#include "training/precision.hpp"
 
 namespace {
 
@@ -50,28 +50,23 @@ int main(int argc, char** argv) {
   spec.encoder.bands = std::stoi(argv[2]);
   const int chip = std::stoi(argv[3]), batch = std::stoi(argv[4]), steps = std::stoi(argv[5]);
   const bool channels_last = argc > 6 && std::string(argv[6]) == "1";
-  const bool bf16 = argc > 7 && std::string(argv[7]) == "bf16";
+  const tinct::PrecisionChoice precision = tinct::choose_precision(argc > 7 ? argv[7] : "fp32");
   torch::manual_seed(0);
   tinct::ColourisationModel model(spec);
   const std::int64_t macs = tinct::conv_linear_macs(model, {1, spec.encoder.bands, chip, chip});
   torch::optim::AdamW optimizer(model->parameters(), torch::optim::AdamWOptions(1e-3));
   auto memory = channels_last ? torch::MemoryFormat::ChannelsLast : torch::MemoryFormat::Contiguous;
-  if (channels_last) {
-    for (auto& p : model->parameters()) {
-      if (p.dim() == 4) p.set_data(p.contiguous(memory));
-    }
-  }
-  if (bf16) {  // after counting MACs, which runs a float forward
-    at::autocast::set_autocast_cpu_dtype(at::kBFloat16);
-    at::autocast::set_cpu_enabled(true);
-  }
   const torch::Tensor x = torch::randn({batch, spec.encoder.bands, chip, chip}).contiguous(memory);
   const torch::Tensor target = torch::rand({batch, 3, chip, chip});
   const auto step = [&] {
-    const torch::Tensor loss = torch::smooth_l1_loss(model->forward(x).to(torch::kFloat), target);
+    torch::Tensor prediction;
+    {
+      const tinct::ForwardPrecision scope(precision);
+      prediction = model->forward(x).to(torch::kFloat).contiguous();
+    }
+    const torch::Tensor loss = torch::smooth_l1_loss(prediction, target);
     optimizer.zero_grad();
     loss.backward();
-    at::autocast::clear_cache();  // its bf16 copies of the weights are stale after the step
     optimizer.step();
   };
   for (int i = 0; i < 3; ++i) step();  // warm-up
@@ -81,7 +76,6 @@ int main(int argc, char** argv) {
   const double gflops = chips_per_s * 3.0 * 2.0 * static_cast<double>(macs) / 1e9;
   std::int64_t parameters = 0;
   for (const auto& p : model->parameters()) parameters += p.numel();
-  at::autocast::set_cpu_enabled(false);
   std::printf("%s %.2f %.2f %.2f %lld %d %lld\n", spec.encoder.name.c_str(), chips_per_s, gflops, matmul_gflops(),
               static_cast<long long>(macs), tinct::threads_in_use(), static_cast<long long>(parameters));
   return 0;

@@ -49,7 +49,8 @@ constexpr double kTolerance = 1e-5;
 std::string pretrain_yaml(const std::string& output) {
   return "config: pretrain\nstores: [tiny.pairs]\noutput: " + output +
          "\nmodel: {encoder: compact, width: 0.5}\n"
-         "train: {steps: 6, batch: 4, lr: 0.003, warmup: 2, log_every: 1, seed: 5, augment: false, optimizer: sgd}\n"
+         "train: {steps: 6, batch: 4, lr: 0.003, warmup: 2, log_every: 1, seed: 5, augment: false, optimizer: sgd, "
+         "precision: fp32}\n"
          "validation: {every: 3, chips: 8, previews: 0}\n"
          "checkpoints: {every: 3, keep: 2}\n"
          "distributed: {timeout: 30, batch_norm: sync}\n";

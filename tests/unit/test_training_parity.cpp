@@ -40,9 +40,11 @@ using tinct::testing::TempFolder;
 
 namespace {
 
-// Pretrain: 6 steps of 4 chips, warm-up 2, AdamW, clip 1 (pretrain.yaml below).
-const std::vector<double> kPretrainLosses{0.4068416655063629, 0.35931727290153503, 0.31338515877723694,
-                                          0.2986493408679962, 0.3257024586200714,  0.29641005396842957};
+// Pretrain: 6 steps of 4 chips, warm-up 2, AdamW, clip 1 (pretrain.yaml below), fp32.
+// Re-recorded when the loop came to feed its chips in channels-last layout: oneDNN's other
+// kernels moved the sixth loss by 2.6e-3 (the first is unchanged to the last digit).
+const std::vector<double> kPretrainLosses{0.4068416655063629, 0.3593176603317261, 0.3133884370326996,
+                                          0.2984727621078491, 0.325648695230484,  0.29719313979148865};
 // Finetune with a constant rate and no clipping: fine-tuning as it was before it shared the
 // training core. Re-recorded when split.seed (default 0) replaced train.seed for the folds and
 // validation came to be carved from the training labels by class: other training chips.
@@ -56,7 +58,7 @@ const char* kPretrainYaml = R"(config: pretrain
 stores: [tiny.pairs]
 output: runs/pre
 model: {encoder: compact, width: 0.5}
-train: {steps: 6, batch: 4, lr: 0.003, warmup: 2, log_every: 1, seed: 5}
+train: {steps: 6, batch: 4, lr: 0.003, warmup: 2, log_every: 1, seed: 5, precision: fp32}
 validation: {every: 6, chips: 8, previews: 0}
 checkpoints: {every: 3, keep: 1}
 )";

@@ -2,6 +2,7 @@
 
 #include "batches/store_fit.hpp"
 #include "chips/store_list.hpp"
+#include "training/precision.hpp"
 #include "util/error.hpp"
 
 namespace fs = std::filesystem;
@@ -31,6 +32,7 @@ void read_train(const ConfigNode& node, PretrainConfig& config) {
   config.epochs = node.number("epochs", 10.0, 1e-6);
   config.train = read_train_settings(node, TrainSettings{});  // the struct's defaults are pretrain's
   config.log_every = static_cast<int>(node.integer("log_every", 10, 1));
+  config.precision = node.choice("precision", precision_names(), config.precision);
   node.finish();
 }
 

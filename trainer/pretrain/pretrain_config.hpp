@@ -38,6 +38,7 @@ struct PretrainConfig {
   std::int64_t steps = 0;    // train.steps; 0: from train.epochs
   double epochs = 10;        // train.epochs over the training chips, when steps is 0
   int log_every = 10;        // train.log_every: steps between metrics rows
+  std::string precision = "auto";  // train.precision: fp32 | bf16 | auto (training/precision.hpp)
   ValidationSettings validation;
   CheckpointSettings checkpoints;
   DistributedSettings distributed;  // distributed: how the processes of a data-parallel job meet

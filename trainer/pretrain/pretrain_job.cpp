@@ -19,6 +19,7 @@
 #include "training/lr_schedule.hpp"
 #include "training/data_parallel.hpp"
 #include "training/optimizer.hpp"
+#include "training/precision.hpp"
 #include "training/run_lifecycle.hpp"
 #include "training/train_step.hpp"
 #include "util/error.hpp"
@@ -36,6 +37,14 @@ std::int64_t total_steps(const PretrainConfig& c, std::size_t training_chips) {
   return std::max<std::int64_t>(1, static_cast<std::int64_t>(std::ceil(c.epochs * training_chips / c.train.batch)));
 }
 
+// The step's forward: chips in channels-last layout (oneDNN's convolutions run faster on it:
+// scripts/bench.sh, training-step options), in the run's precision; the prediction comes
+// back as contiguous fp32 for the loss.
+torch::Tensor training_forward(ColourisationModel& model, const torch::Tensor& bands, const PrecisionChoice& precision) {
+  const ForwardPrecision scope(precision);
+  return model->forward(bands.contiguous(torch::MemoryFormat::ChannelsLast)).to(torch::kFloat).contiguous();
+}
+
 bool due(std::int64_t done, std::int64_t every, std::int64_t total) {
   return done == total || (every > 0 && done % every == 0);
 }
@@ -49,6 +58,7 @@ struct Training {
   const PretrainConfig& config;
   RunLifecycle& run;
   DataParallel& parallel;
+  PrecisionChoice precision;
   ChipCollection chips;
   ChipSplit split;
   ColourisationModel model;
@@ -56,10 +66,11 @@ struct Training {
   std::int64_t total = 0;
   std::int64_t start = 0;
 
-  Training(const PretrainConfig& c, RunLifecycle& r, DataParallel& p)
+  Training(const PretrainConfig& c, RunLifecycle& r, DataParallel& p, PrecisionChoice precision_)
       : config(c),
         run(r),
         parallel(p),
+        precision(std::move(precision_)),
         chips(c.stores),
         split(hold_out_blocks(chips, c.validation.fraction, c.train.seed)),
         model(nullptr) {
@@ -147,7 +158,8 @@ RunOutcome train(Training& t, const PretrainOptions& options) {
     const double lr = schedule.at(step);
     t.optimizer.set_learning_rate(lr);
     const StepResult result = train_step.run([&] {
-      const torch::Tensor prediction = t.model->forward(batch.bands);  // (B, C, H, W) -> (B, 3 or 1+Q, H, W)
+      // (B, C, H, W) -> (B, 3 or 1+Q, H, W)
+      const torch::Tensor prediction = training_forward(t.model, batch.bands, t.precision);
       return t.parallel.global_mean(objective.loss(prediction, batch), batch.valid.sum().item<double>());
     });
     if (!result.finite) fail_non_finite("pretrain", "step " + std::to_string(step + 1), t.run.file("checkpoints"));
@@ -210,10 +222,12 @@ void log_split(const Training& t) {
 void run_pretrain(const PretrainConfig& config, const PretrainOptions& options) {
   DataParallel one_process;
   DataParallel& parallel = options.parallel ? *options.parallel : one_process;
+  const PrecisionChoice precision = choose_precision(config.precision);
   RunLifecycle run({"pretrain", config.output, options.force, options.resume, options.resolved_config,
-                    config.train.seed, parallel.single() ? nullptr : &parallel.group()});
+                    config.train.seed, parallel.single() ? nullptr : &parallel.group(), precision});
   run.execute([&] {
-    Training training(config, run, parallel);
+    log::info("pretrain: " + precision.used + " arithmetic (" + precision.why + ")");
+    Training training(config, run, parallel, precision);
     if (options.resume) training.start = restore(training);
     parallel.prepare(*training.model);
     log_split(training);

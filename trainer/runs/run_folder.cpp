@@ -243,6 +243,12 @@ std::string RunFolder::write_config(const std::string& resolved_yaml) {
   return config_hash_;
 }
 
+void RunFolder::set_precision(const std::string& requested, const std::string& used, const std::string& why) {
+  precision_requested_ = requested;
+  precision_used_ = used;
+  precision_why_ = why;
+}
+
 void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::string& reason) {
   if (started_.empty()) started_ = utc_now();
   const BlasInUse blas = blas_in_use();
@@ -259,6 +265,13 @@ void RunFolder::write_status(RunStatus status, std::int64_t seed, const std::str
   out << YAML::Key << "opencv" << YAML::Value << opencv_version();
   out << YAML::EndMap;
   out << YAML::Key << "threads" << YAML::Value << threads_in_use();
+  if (!precision_requested_.empty()) {
+    out << YAML::Key << "precision" << YAML::Value << YAML::BeginMap;
+    out << YAML::Key << "requested" << YAML::Value << precision_requested_;
+    out << YAML::Key << "used" << YAML::Value << precision_used_;
+    out << YAML::Key << "why" << YAML::Value << precision_why_;
+    out << YAML::EndMap;
+  }
   out << YAML::Key << "blas" << YAML::Value << YAML::BeginMap;
   out << YAML::Key << "family" << YAML::Value << blas.family;
   out << YAML::Key << "library" << YAML::Value << blas.library;

@@ -56,6 +56,9 @@ class RunFolder {
   // A finding of the run kept in run.yaml under `key` from the next write_status on (e.g. the
   // probe's inner cross-validation), so the record says how the run chose what it chose.
   void record(const std::string& key, const YAML::Node& value) { records_[key] = YAML::Clone(value); }
+  // The arithmetic of the training step, written into run.yaml from then on (precision:
+  // requested, used, why); never set: no such entry.
+  void set_precision(const std::string& requested, const std::string& used, const std::string& why);
   // Status recorded in an existing run.yaml ("" when there is none).
   static std::string recorded_status(const std::filesystem::path& run_path);
 
@@ -86,6 +89,7 @@ class RunFolder {
   std::string started_;
   std::vector<ResumeChange> resume_changes_;  // of every resume, oldest first
   YAML::Node records_{YAML::NodeType::Map};
+  std::string precision_requested_, precision_used_, precision_why_;
 };
 
 std::string to_string(RunStatus status);

@@ -76,6 +76,9 @@ RunLifecycle::RunLifecycle(const RunStart& start) : start_(start) {
     log::info(start.command + ": resumed with " + describe_changes(changes) + " (recorded in run.yaml)");
   }
   config_hash_ = folder_->write_config(start.resolved_config);
+  if (!start.precision.requested.empty()) {
+    folder_->set_precision(start.precision.requested, start.precision.used, start.precision.why);
+  }
   folder_->write_status(RunStatus::running, static_cast<std::int64_t>(start.seed));
 }
 

@@ -13,6 +13,7 @@
 #include <string>
 
 #include "runs/run_folder.hpp"
+#include "training/precision.hpp"
 #include "training/stop_signals.hpp"
 
 namespace tinct {
@@ -30,6 +31,7 @@ struct RunStart {
   std::string resolved_config;
   std::uint64_t seed = 0;
   ProcessGroup* group = nullptr;  // a data-parallel job's processes; null: one process
+  PrecisionChoice precision{"", "", ""};  // the step's arithmetic for run.yaml; requested "": none
 };
 
 struct RunOutcome {
