@@ -22,17 +22,8 @@ for target in "${targets[@]}"; do
 done
 
 packages=(clang-14 libclang-rt-14-dev llvm-14)
-missing=()
-for package in "${packages[@]}"; do
-  dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" || missing+=("$package")
-done
-if [[ ${#missing[@]} -gt 0 ]]; then
-  echo "fuzz: installing ${missing[*]}"
-  sudo=""
-  [[ $(id -u) -eq 0 ]] || sudo="sudo"
-  $sudo apt-get update -qq
-  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
-fi
+source scripts/lib/install_missing.sh
+install_missing fuzz "${packages[@]}"
 
 if [[ ! -f build-fuzz/CMakeCache.txt ]]; then
   cmake -S . -B build-fuzz -DCMAKE_BUILD_TYPE=RelWithDebInfo -DCMAKE_CXX_COMPILER=clang++-14 -DTINCT_FUZZ=ON > /dev/null

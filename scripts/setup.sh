@@ -16,18 +16,8 @@ packages=(
   strace
 )
 
-missing=()
-for package in "${packages[@]}"; do
-  dpkg-query -W -f='${Status}' "$package" 2>/dev/null | grep -q "install ok installed" ||
-    missing+=("$package")
-done
-if [[ ${#missing[@]} -gt 0 ]]; then
-  echo "setup: installing ${missing[*]}"
-  sudo=""
-  [[ $(id -u) -eq 0 ]] || sudo="sudo"
-  $sudo apt-get update -qq
-  DEBIAN_FRONTEND=noninteractive $sudo apt-get install -y -qq --no-install-recommends "${missing[@]}"
-fi
+source scripts/lib/install_missing.sh
+install_missing setup "${packages[@]}"
 
 build_type=${TINCT_BUILD_TYPE:-Release}
 if [[ ! -f build/CMakeCache.txt ]]; then
