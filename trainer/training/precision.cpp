@@ -41,7 +41,7 @@ PrecisionChoice choose_precision(const std::string& requested) {
   } else if (requested == "bf16") {
     choice.used = "bf16";
     choice.why = fast ? "as requested; the processor has " + has
-                      : "as requested, though the processor has no native bf16 (slower than fp32)";
+                      : "as requested, though the processor has no native bf16 (emulated)";
   } else if (fast) {
     choice.used = "bf16";
     choice.why = "auto: the processor has " + has;
