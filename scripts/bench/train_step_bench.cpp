@@ -6,12 +6,15 @@
 // bf16 runs the forward under LibTorch's CPU autocast (training/precision.hpp).
 //
 // usage: tinct_train_bench ENCODER BANDS CHIP BATCH STEPS [channels_last 0|1] [fp32|bf16]
-// prints: ENCODER chips/s GFLOP/s matmul-GFLOP/s MACs/chip threads parameters
+// prints: ENCODER chips/s GFLOP/s matmul-GFLOP/s MACs/chip threads parameters cpu-ms/step
+// (the process's CPU time per timed step: steadier than wall time on a loaded machine when
+// OMP_WAIT_POLICY=passive keeps idle threads from spinning)
 #include <torch/torch.h>
 
 #include <algorithm>
 #include <chrono>
 #include <cstdio>
+#include <ctime>
 #include <string>
 
 #include "models/colourisation_model.hpp"
@@ -71,12 +74,14 @@ int main(int argc, char** argv) {
   };
   for (int i = 0; i < 3; ++i) step();  // warm-up
   const auto start = std::chrono::steady_clock::now();
+  const std::clock_t cpu_start = std::clock();
   for (int i = 0; i < steps; ++i) step();
   const double chips_per_s = steps * batch / seconds_since(start);
+  const double cpu_ms = 1000.0 * static_cast<double>(std::clock() - cpu_start) / CLOCKS_PER_SEC / steps;
   const double gflops = chips_per_s * 3.0 * 2.0 * static_cast<double>(macs) / 1e9;
   std::int64_t parameters = 0;
   for (const auto& p : model->parameters()) parameters += p.numel();
-  std::printf("%s %.2f %.2f %.2f %lld %d %lld\n", spec.encoder.name.c_str(), chips_per_s, gflops, matmul_gflops(),
-              static_cast<long long>(macs), tinct::threads_in_use(), static_cast<long long>(parameters));
+  std::printf("%s %.2f %.2f %.2f %lld %d %lld %.1f\n", spec.encoder.name.c_str(), chips_per_s, gflops, matmul_gflops(),
+              static_cast<long long>(macs), tinct::threads_in_use(), static_cast<long long>(parameters), cpu_ms);
   return 0;
 }
