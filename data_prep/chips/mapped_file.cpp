@@ -67,6 +67,14 @@ void MappedFile::will_need(std::size_t offset, std::size_t length) const {
   ::madvise(const_cast<std::uint8_t*>(data_) + start, end - start, MADV_WILLNEED);
 }
 
+void MappedFile::release(std::size_t offset, std::size_t length) const {
+  constexpr std::size_t kBlock = 2 * 1024 * 1024;
+  if (data_ == nullptr || offset >= size_ || length == 0) return;
+  const std::size_t start = offset / kBlock * kBlock;
+  const std::size_t end = std::min(size_, (offset + length + kBlock - 1) / kBlock * kBlock);
+  ::madvise(const_cast<std::uint8_t*>(data_) + start, end - start, MADV_DONTNEED);
+}
+
 void release_pages(const void* begin, std::size_t length) {
   const auto page = static_cast<std::uintptr_t>(::sysconf(_SC_PAGESIZE));
   const auto start = reinterpret_cast<std::uintptr_t>(begin);

@@ -174,7 +174,7 @@ void StoreReader::prefetch(std::int64_t first, std::int64_t count) const {
 void StoreReader::release(std::int64_t chip) const {
   check_chip(chip);
   const auto drop = [&](const MappedFile& file, std::int64_t chip_bytes) {
-    release_pages(file.data() + chip * chip_bytes, static_cast<std::size_t>(chip_bytes));
+    file.release(static_cast<std::size_t>(chip * chip_bytes), static_cast<std::size_t>(chip_bytes));
   };
   drop(bands_, chip_band_bytes(layout_));
   if (has_colour()) drop(colour_, chip_colour_bytes(layout_));
