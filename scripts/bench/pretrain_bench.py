@@ -36,8 +36,9 @@ checkpoints: {{every: 100000, keep: 1}}
 
 
 def step_rate(bench):
-    return float(subprocess.run([bench, "compact", "12", "64", "32", "15"], check=True, capture_output=True,
-                                text=True).stdout.split()[1])
+    """The step as tinct pretrain runs it: channels-last chips, precision auto."""
+    return float(subprocess.run([bench, "compact", "12", "64", "32", "15", "1", "auto"], check=True,
+                                capture_output=True, text=True).stdout.split()[1])
 
 
 def main(tinct, bench, work):

@@ -7,9 +7,9 @@ tinct pretrain feeds them), OpenMP threads pinned to cores (OMP_PROC_BIND=close,
 OMP_PLACES=cores), and bf16 autocast, contiguous and channels-last, when the processor has
 native bf16 (AVX512-BF16 or AMX; said so when it has not). Then the step time over batch
 16, 32 and 64 as tinct pretrain runs it (channels-last, precision auto), which should grow
-linearly.
+linearly: per chip the same at every batch.
 
-usage: train_options_bench.py TINCT_TRAIN_BENCH"""
+usage: train_options_bench.py TINCT_TRAIN_BENCH [scaling]   (scaling: only the batch sizes)"""
 import os
 import statistics
 import subprocess
@@ -41,7 +41,13 @@ def option_rows(figures, variants, bf16):
     return rows
 
 
-def main(bench):
+def main(bench, only_scaling=False):
+    if not only_scaling:
+        options(bench)
+    scaling(bench)
+
+
+def options(bench):
     bf16 = has_native_bf16()
     variants = [("contiguous fp32", {}), ("channels-last fp32", {"channels_last": "1"}),
                 ("contiguous fp32, pinned threads", {"env": PINNED})]
@@ -57,7 +63,9 @@ def main(bench):
         print_table(f"training-step options, after {r + 1} of {ROUNDS} rounds",
                     option_rows(figures, variants, bf16), flush=True)
 
-    rows = []
+
+def scaling(bench):
+    rows = [("machine", machine_line(), "")]
     per_batch = {}
     for r in range(ROUNDS):
         for batch in ((16, 32, 64) if r % 2 == 0 else (64, 32, 16)):
@@ -67,10 +75,10 @@ def main(bench):
     for batch in (16, 32, 64):
         best = min(per_batch[batch])
         rows.append((f"compact step, batch {batch}", f"best {1000 * best:.0f} ms, median "
-                     f"{1000 * statistics.median(per_batch[batch]):.0f} ms ({best / batch / base:.2f}x linear)",
-                     "linear: 1.00x"))
+                     f"{1000 * statistics.median(per_batch[batch]):.0f} ms; per chip {1000 * best / batch:.1f} ms "
+                     f"({best / batch / base:.2f}x of batch 16's)", "linear: 1.00x"))
     print_table("pretraining step over batch size (channels-last, precision auto)", rows)
 
 
 if __name__ == "__main__":
-    main(sys.argv[1])
+    main(sys.argv[1], len(sys.argv) > 2 and sys.argv[2] == "scaling")
