@@ -164,6 +164,57 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     sums = probabilities[:, ~expected_nodata].sum(axis=0)
     checks.check(np.abs(sums - 1).max() < 1e-5, f"probabilities sum to 1 within {np.abs(sums - 1).max():.2e}")
 
+    # uncertainty.tif: the entropy of each cell's probabilities over ln K (numpy on GDAL's
+    # pixels), no data where the probabilities have none.
+    uncertainty_band = read(os.path.join(exact, "b", "uncertainty.tif"))
+    p = probabilities[:, ~expected_nodata].astype(np.float64)
+    entropy = -(np.where(p > 0, p * np.log(np.where(p > 0, p, 1)), 0)).sum(axis=0) / np.log(2)
+    checks.check(np.abs(uncertainty_band[~expected_nodata] - entropy).max() < 1e-5,
+                 f"uncertainty differs from numpy's normalised entropy by "
+                 f"{np.abs(uncertainty_band[~expected_nodata] - entropy).max():.2e}")
+    checks.check(np.isnan(uncertainty_band[expected_nodata]).all(), "masked cells carry an uncertainty")
+
+    # Provenance in the metadata: the run, its config hash as run.yaml records it, the version.
+    metadata = prob_info["metadata"][""]
+    run_hash = next(line.split(":", 1)[1].strip().strip('"') for line in open(os.path.join(work, "runs", "ft", "run.yaml"))
+                    if line.startswith("config_hash:"))
+    checks.check(metadata.get("TINCT_RUN") == "ft" and metadata.get("TINCT_RUN_CONFIG_HASH") == run_hash and
+                 metadata.get("TINCT_VERSION") and metadata.get("TINCT_MAP_CONFIG_HASH"),
+                 f"provenance metadata: {[(k, v) for k, v in metadata.items() if k.startswith('TINCT_')]}")
+
+    # Calibration: the run's temperature T (aoa.json) divides the logits, so for two classes
+    # the log-odds of the calibrated map are the uncalibrated map's (aoa: false) over T.
+    # uint8 probabilities: round(250 p) of the same cells, 255 where there is no data.
+    with open(os.path.join(work, "map-raw.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/raw\nstride: {STRIDE}\nmode: exact\naoa: false\n"
+                f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
+    tinct(["map", "map-raw.yaml"], work)
+    with open(os.path.join(work, "map.yaml")) as f:
+        byte_config = f.read().replace("probabilities: float32", "probabilities: uint8").replace("maps/exact", "maps/bytes")
+    with open(os.path.join(work, "map-bytes.yaml"), "w") as f:
+        f.write(byte_config)
+    tinct(["map", "map-bytes.yaml", "--force"], work)
+    temperature = json.load(open(os.path.join(exact, "aoa.json")))["temperature"]
+    raw = np.stack([read(os.path.join(work, "maps", "raw", "b", "probabilities.tif"), k) for k in (1, 2)])
+    # (A small T, as here where the validation chips separate, saturates most calibrated
+    # cells; the cells whose probabilities are still above float32's smallest normal number
+    # carry the log-odds.)
+    both = ~expected_nodata & (probabilities.min(axis=0) > 1e-30) & (raw.min(axis=0) > 1e-30)
+    log_odds = np.log(probabilities[1, both].astype(np.float64) / probabilities[0, both])
+    raw_log_odds = np.log(raw[1, both].astype(np.float64) / raw[0, both])
+    steep = np.abs(log_odds) > 0.05
+    ratio = raw_log_odds[steep] / log_odds[steep]
+    print(f"calibration: temperature {temperature:.4f}; uncalibrated / calibrated log-odds over {steep.sum()} cells: "
+          f"{ratio.min() if steep.any() else float('nan'):.5f} to {ratio.max() if steep.any() else float('nan'):.5f}")
+    # float32 probabilities near 0.5 leave the small uncalibrated log-odds about 1e-3 exact.
+    checks.check(steep.sum() >= 5 and np.abs(ratio / temperature - 1).max() < 1e-2,
+                 f"calibrated log-odds are not the uncalibrated ones over T = {temperature}")
+    codes = np.stack([read(os.path.join(work, "maps", "bytes", "b", "probabilities.tif"), k) for k in (1, 2)])
+    expected_codes = np.rint(probabilities[:, ~expected_nodata].astype(np.float64) * 250)
+    checks.check(np.abs(codes[:, ~expected_nodata] - expected_codes).max() <= 1 and
+                 (codes[:, expected_nodata] == 255).all() and codes[:, ~expected_nodata].max() <= 250,
+                 "uint8 probabilities are not round(250 p) with 255 for no data")
+
     # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
     # windows touching neither it nor the unseen patch nor the mask are dark.
     def window_overlaps(r, c, rows, cols):
