@@ -215,6 +215,26 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
                  (codes[:, expected_nodata] == 255).all() and codes[:, ~expected_nodata].max() <= 250,
                  "uint8 probabilities are not round(250 p) with 255 for no data")
 
+    # The map reads a scene as `tinct label` cut its chips: `tinct assess` scores every chip of
+    # the label store (uncalibrated softmax, 6 decimals in predictions.csv); the uncalibrated
+    # map (aoa: false) at the same locations through --points gives the same probabilities.
+    tinct(["assess", "runs/ft", "--on", "a.labels", "--all", "--out", "assess-all"], work)
+    import csv
+    assessed = list(csv.DictReader(open(os.path.join(work, "assess-all", "predictions.csv"))))
+    with open(os.path.join(work, "assessed-points.csv"), "w") as f:
+        f.write("id,x,y\n")
+        for i, row in enumerate(assessed):
+            f.write(f"chip{i},{row['x']},{row['y']}\n")
+    with open(os.path.join(work, "map-raw-a.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/raw-a\nmode: exact\naoa: false\nprobabilities: float32\n"
+                f"sensor: {profile}\nscenes: [{{id: a, path: a.tif, date: 2026-06-01}}]\n")
+    tinct(["map", "map-raw-a.yaml", "--points", "assessed-points.csv"], work)
+    mapped = {row["id"]: row for row in csv.DictReader(open(os.path.join(work, "maps", "raw-a", "points.csv")))}
+    worst = max(abs(float(mapped[f"chip{i}"][f"p_{name}"]) - float(row[f"p_{name}"]))
+                for i, row in enumerate(assessed) for name in ("dark", "bright"))
+    print(f"--points vs tinct assess on {len(assessed)} label chips: max |dp| {worst:.2e}")
+    checks.check(len(assessed) >= 40 and worst < 1e-4, f"the map's points differ from tinct assess by {worst:.2e}")
+
     # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
     # windows touching neither it nor the unseen patch nor the mask are dark.
     def window_overlaps(r, c, rows, cols):
