@@ -235,6 +235,32 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     print(f"--points vs tinct assess on {len(assessed)} label chips: max |dp| {worst:.2e}")
     checks.check(len(assessed) >= 40 and worst < 1e-4, f"the map's points differ from tinct assess by {worst:.2e}")
 
+    # --points from an OGR layer: the first 12 chips as GeoJSON points in longitude and
+    # latitude (transformed by GDAL's osr), the same windows and probabilities as the CSV's.
+    from osgeo import ogr, osr
+    utm, wgs84 = osr.SpatialReference(), osr.SpatialReference()
+    utm.ImportFromEPSG(32632)
+    wgs84.ImportFromEPSG(4326)
+    wgs84.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    to_wgs84 = osr.CoordinateTransformation(utm, wgs84)
+    vector = ogr.GetDriverByName("GeoJSON").CreateDataSource(os.path.join(work, "assessed.geojson"))
+    layer = vector.CreateLayer("chips", wgs84, ogr.wkbPoint)
+    layer.CreateField(ogr.FieldDefn("id", ogr.OFTString))
+    for i, row in enumerate(assessed[:12]):
+        lon, lat, _ = to_wgs84.TransformPoint(float(row["x"]), float(row["y"]))
+        feature = ogr.Feature(layer.GetLayerDefn())
+        feature.SetField("id", f"chip{i}")
+        feature.SetGeometry(ogr.CreateGeometryFromWkt(f"POINT ({lon!r} {lat!r})"))
+        layer.CreateFeature(feature)
+    vector = None
+    tinct(["map", "map-raw-a.yaml", "--points", "assessed.geojson", "--out", "maps/raw-a-vector"], work)
+    from_vector = list(csv.DictReader(open(os.path.join(work, "maps", "raw-a-vector", "points.csv"))))
+    # (A vector point's id is its feature id: GeoJSON numbers features from 0.)
+    worst = max(abs(float(row[f"p_{name}"]) - float(mapped[f"chip{row['id']}"][f"p_{name}"]))
+                for row in from_vector for name in ("dark", "bright")) if from_vector else float("inf")
+    checks.check(len(from_vector) == 12 and worst < 1e-6,
+                 f"GeoJSON points: {len(from_vector)} rows, max |dp| against the CSV's {worst:.2e}")
+
     # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
     # windows touching neither it nor the unseen patch nor the mask are dark.
     def window_overlaps(r, c, rows, cols):
