@@ -381,6 +381,32 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     quicklook = os.path.join(exact, "b", "quicklook.png")
     image = gdal.Open(quicklook)
     checks.check(image is not None and image.RasterXSize >= 600, "quicklook.png missing or small")
+    # Each cell of the quicklook (quicklook.cpp's layout: cells scaled by 600 // cells, the map
+    # 16 px from the left and 28 px from the top) in the colour of classes.tif's colour table;
+    # cells outside the area of applicability (aoa.tif's mask) hatched in grey (90, 90, 90);
+    # no-data cells one colour that is no class's.
+    if image is not None:
+        rgb = np.stack([image.GetRasterBand(k).ReadAsArray() for k in (1, 2, 3)], axis=2)
+        classes_file = gdal.Open(os.path.join(exact, "b", "classes.tif"))  # held: the table lives in it
+        table = classes_file.GetRasterBand(1).GetColorTable()
+        palette = [tuple(table.GetColorEntry(k)[:3]) for k in range(2)]
+        scale = 600 // cells
+        wrong = []
+        for r in range(cells):
+            for c in range(cells):
+                block = rgb[28 + r * scale:28 + (r + 1) * scale, 16 + c * scale:16 + (c + 1) * scale].reshape(-1, 3)
+                colours = {tuple(int(v) for v in x) for x in np.unique(block, axis=0)}
+                if classes[r, c] == 255:
+                    ok = len(colours) == 1 and not colours & set(palette) and (90, 90, 90) not in colours
+                elif mask_band[r, c] == 0:
+                    ok = colours == {palette[classes[r, c]], (90, 90, 90)}
+                else:
+                    ok = colours == {palette[classes[r, c]]}
+                if not ok:
+                    wrong.append((r, c, sorted(colours)[:3]))
+        checks.check(not wrong, f"quicklook cells not drawn as classes.tif and aoa.tif say: {wrong[:5]}")
+        checks.check((mask_band[classes != 255] == 0).any() and (classes == 255).any(),
+                     "scene b's quicklook shows no hatched or no no-data cells")
     os.makedirs(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic"), exist_ok=True)
     if image is not None:
         gdal.Translate(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic", "quicklook.png"), image)
