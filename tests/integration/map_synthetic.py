@@ -2,10 +2,12 @@
 (class bright) and textured background (class dark) maps a new scene holding one bright
 square, a patch of a cover never seen in training and a masked patch. Checked against
 GDAL's own gdalinfo -json (CRS, geotransform, size), numpy on GDAL's pixels (probabilities
-sum to 1, nodata exactly where the mask leaves too few valid pixels, the square's cells),
-the run's own --points predictions of the same windows, and a direct numpy computation of
-the area-of-applicability formula (Meyer and Pebesma 2021, as documented in
-assess/area_of_applicability.hpp) on the exported training features."""
+sum to 1, nodata exactly where the mask leaves too few valid pixels, the square's cells,
+the entropy band, the temperature's effect on the log-odds, the uint8 codes, each quicklook
+cell's colour and hatching), the run's own --points predictions of the same windows (from a
+CSV and a GeoJSON layer), `tinct assess`'s predictions of the label chips, and a direct
+numpy computation of the area-of-applicability formula (Meyer and Pebesma 2021, as
+documented in assess/area_of_applicability.hpp) on the exported training features."""
 import json
 import os
 import subprocess
