@@ -3,7 +3,9 @@
 # PyTorch peer, measured side by side in one run on this machine (interleaved rounds, best
 # and median) and printed as tables. Not a test: the goals are printed beside the figures,
 # nothing fails on a slow machine. One script per section under scripts/bench/;
-# TINCT_BENCH_ROUNDS (default 3) sets the rounds, TINCT_BENCH_DIR keeps the generated data.
+# TINCT_BENCH_ROUNDS (default 3) sets the rounds, TINCT_BENCH_DIR keeps the generated data;
+# the map section: TINCT_MAP_BENCH_SIZE (default 4096) its scene, TINCT_MAP_BENCH_THREADS
+# tinct's threads (default all; 1 on a machine others load, where threads wait on each other).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 scripts/setup.sh > /dev/null

@@ -8,7 +8,11 @@ alternating over TINCT_BENCH_ROUNDS rounds (best and median of each):
   training features included) and for the scene's own loop, and dense's speed-up (goal: at
   least 8x);
 - peak resident memory of each (GNU time's %M; goal: under 500 MB whatever the scene size);
-- agreement of the two class maps over cells with data (goal: at least 98 %).
+- agreement of the two class maps over cells with data (goal: at least 98 %);
+- the scene loop's seconds per stage (reading, model, cells, applicability windows, writing),
+  wall-clock and CPU, and dense's speed-up in CPU seconds: on a machine other jobs load, the
+  wall clock mostly measures the wait for a core, the CPU time still the work (with
+  TINCT_MAP_BENCH_THREADS=1 no thread waits for another).
 Usage: map_bench.py TINCT WORKDIR [SIZE]"""
 import os
 import subprocess
@@ -23,6 +27,7 @@ from bench_common import ROUNDS, best_median, machine_line  # noqa: E402
 
 TINCT, WORK = sys.argv[1], sys.argv[2]
 SIZE = int(sys.argv[3]) if len(sys.argv) > 3 else 4096
+THREADS = os.environ.get("TINCT_MAP_BENCH_THREADS", "")  # tinct's --threads for the maps (default: all cores)
 BANDS, CHIP = 12, 64
 NAMES = ["B01", "B02", "B03", "B04", "B05", "B06", "B07", "B08", "B8A", "B09", "B11", "B12"]
 
@@ -46,14 +51,34 @@ def make_scene(path):
     return field
 
 
+STAGES = ("reading", "model", "cells", "applicability windows", "writing")
+
+
+def stage_seconds(lines):
+    """The scene loop's wall-clock and CPU seconds per stage, from its log line
+    "...: reading 1.0 s, model 2.0 s, ...; CPU: reading 0.50 s, model 1.60 s, ..."."""
+    line = next((line for line in lines if "; CPU: reading " in line), "")
+    wall, _, cpu = line.partition("; CPU: ")
+    figures = []
+    for text in (wall.split(": ")[-1], cpu):
+        seconds = {}
+        for part in text.split(", "):
+            name, _, value = part.rpartition(" ")[0].rpartition(" ")
+            seconds[name] = float(value)
+        figures.append([seconds.get(stage, float("nan")) for stage in STAGES])
+    return figures
+
+
 def timed(args):
     start = time.time()
-    run = subprocess.run(["/usr/bin/time", "-f", "%M", TINCT, *args], capture_output=True, text=True, cwd=WORK)
+    threads = ["--threads", THREADS] if THREADS else []
+    run = subprocess.run(["/usr/bin/time", "-f", "%M", TINCT, *threads, *args], capture_output=True, text=True, cwd=WORK)
     if run.returncode:
         sys.exit(f"tinct {' '.join(args)} failed:\n{run.stderr[-2000:]}")
     lines = run.stderr.strip().splitlines()
     scene_rate = [line.split("; ")[-1].split()[0] for line in lines if line.endswith("Mpx/s")]
-    return time.time() - start, int(lines[-1]) / 1024, float(scene_rate[0]) if scene_rate else float("nan")
+    return (time.time() - start, int(lines[-1]) / 1024, float(scene_rate[0]) if scene_rate else float("nan"),
+            stage_seconds(lines))
 
 
 os.makedirs(WORK, exist_ok=True)
@@ -103,17 +128,27 @@ print(f"{'mode':<7}{'command Mpx/s best':>20}{'median':>9}{'scene loop Mpx/s bes
       f"{'peak RSS MB max':>17}{'median':>9}")
 figures = {}
 for mode, results in runs.items():
-    command = best_median([megapixels / seconds for seconds, _, _ in results])
-    loop = best_median([rate for _, _, rate in results])
-    rss = [r for _, r, _ in results]
+    command = best_median([megapixels / seconds for seconds, _, _, _ in results])
+    loop = best_median([rate for _, _, rate, _ in results])
+    rss = [r for _, r, _, _ in results]
     figures[mode] = (command, loop, max(rss))
     print(f"{mode:<7}{command[0]:>20.3f}{command[1]:>9.3f}{loop[0]:>23.3f}{loop[1]:>9.3f}"
           f"{max(rss):>17.0f}{sorted(rss)[len(rss) // 2]:>9.0f}")
+cpu_loop = {}
+for clock, index in (("wall-clock", 0), ("CPU", 1)):
+    print(f"scene loop {clock} seconds per stage (medians): " + "; ".join(
+        mode + ": " + ", ".join(f"{stage} {best_median([r[3][index][i] for r in results])[1]:.2f}"
+                                for i, stage in enumerate(STAGES))
+        for mode, results in runs.items()))
+for mode, results in runs.items():
+    cpu_loop[mode] = best_median([sum(r[3][1]) for r in results], higher_is_better=False)
 command_ratio = figures["dense"][0][1] / figures["exact"][0][1]
 loop_ratio = figures["dense"][1][1] / figures["exact"][1][1]
 peak = max(figures[m][2] for m in figures)
 print(f"dense speed-up (medians): {command_ratio:.1f}x whole command, {loop_ratio:.1f}x scene loop "
       f"(goal >= 8x: {'met' if loop_ratio >= 8 else 'not met'})")
+print(f"dense speed-up in the scene loop's CPU seconds (medians; {THREADS or 'all'} threads): "
+      f"{cpu_loop['exact'][1] / cpu_loop['dense'][1]:.1f}x (best {cpu_loop['exact'][0] / cpu_loop['dense'][0]:.1f}x)")
 print(f"class agreement {100 * agreement:.2f} % of {int(valid.sum())} cells (goal >= 98 %: "
       f"{'met' if agreement >= 0.98 else 'not met'})")
 print(f"peak memory {peak:.0f} MB (goal < 500 MB: {'met' if peak < 500 else 'not met'})")

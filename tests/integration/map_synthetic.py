@@ -2,10 +2,12 @@
 (class bright) and textured background (class dark) maps a new scene holding one bright
 square, a patch of a cover never seen in training and a masked patch. Checked against
 GDAL's own gdalinfo -json (CRS, geotransform, size), numpy on GDAL's pixels (probabilities
-sum to 1, nodata exactly where the mask leaves too few valid pixels, the square's cells),
-the run's own --points predictions of the same windows, and a direct numpy computation of
-the area-of-applicability formula (Meyer and Pebesma 2021, as documented in
-assess/area_of_applicability.hpp) on the exported training features."""
+sum to 1, nodata exactly where the mask leaves too few valid pixels, the square's cells,
+the entropy band, the temperature's effect on the log-odds, the uint8 codes, each quicklook
+cell's colour and hatching), the run's own --points predictions of the same windows (from a
+CSV and a GeoJSON layer), `tinct assess`'s predictions of the label chips, and a direct
+numpy computation of the area-of-applicability formula (Meyer and Pebesma 2021, as
+documented in assess/area_of_applicability.hpp) on the exported training features."""
 import json
 import os
 import subprocess
@@ -164,6 +166,103 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     sums = probabilities[:, ~expected_nodata].sum(axis=0)
     checks.check(np.abs(sums - 1).max() < 1e-5, f"probabilities sum to 1 within {np.abs(sums - 1).max():.2e}")
 
+    # uncertainty.tif: the entropy of each cell's probabilities over ln K (numpy on GDAL's
+    # pixels), no data where the probabilities have none.
+    uncertainty_band = read(os.path.join(exact, "b", "uncertainty.tif"))
+    p = probabilities[:, ~expected_nodata].astype(np.float64)
+    entropy = -(np.where(p > 0, p * np.log(np.where(p > 0, p, 1)), 0)).sum(axis=0) / np.log(2)
+    checks.check(np.abs(uncertainty_band[~expected_nodata] - entropy).max() < 1e-5,
+                 f"uncertainty differs from numpy's normalised entropy by "
+                 f"{np.abs(uncertainty_band[~expected_nodata] - entropy).max():.2e}")
+    checks.check(np.isnan(uncertainty_band[expected_nodata]).all(), "masked cells carry an uncertainty")
+
+    # Provenance in the metadata: the run, its config hash as run.yaml records it, the version.
+    metadata = prob_info["metadata"][""]
+    run_hash = next(line.split(":", 1)[1].strip().strip('"') for line in open(os.path.join(work, "runs", "ft", "run.yaml"))
+                    if line.startswith("config_hash:"))
+    checks.check(metadata.get("TINCT_RUN") == "ft" and metadata.get("TINCT_RUN_CONFIG_HASH") == run_hash and
+                 metadata.get("TINCT_VERSION") and metadata.get("TINCT_MAP_CONFIG_HASH"),
+                 f"provenance metadata: {[(k, v) for k, v in metadata.items() if k.startswith('TINCT_')]}")
+
+    # Calibration: the run's temperature T (aoa.json) divides the logits, so for two classes
+    # the log-odds of the calibrated map are the uncalibrated map's (aoa: false) over T.
+    # uint8 probabilities: round(250 p) of the same cells, 255 where there is no data.
+    with open(os.path.join(work, "map-raw.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/raw\nstride: {STRIDE}\nmode: exact\naoa: false\n"
+                f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
+    tinct(["map", "map-raw.yaml"], work)
+    with open(os.path.join(work, "map.yaml")) as f:
+        byte_config = f.read().replace("probabilities: float32", "probabilities: uint8").replace("maps/exact", "maps/bytes")
+    with open(os.path.join(work, "map-bytes.yaml"), "w") as f:
+        f.write(byte_config)
+    tinct(["map", "map-bytes.yaml", "--force"], work)
+    temperature = json.load(open(os.path.join(exact, "aoa.json")))["temperature"]
+    raw = np.stack([read(os.path.join(work, "maps", "raw", "b", "probabilities.tif"), k) for k in (1, 2)])
+    # (A small T, as here where the validation chips separate, saturates most calibrated
+    # cells; the cells whose probabilities are still above float32's smallest normal number
+    # carry the log-odds.)
+    both = ~expected_nodata & (probabilities.min(axis=0) > 1e-30) & (raw.min(axis=0) > 1e-30)
+    log_odds = np.log(probabilities[1, both].astype(np.float64) / probabilities[0, both])
+    raw_log_odds = np.log(raw[1, both].astype(np.float64) / raw[0, both])
+    steep = np.abs(log_odds) > 0.05
+    ratio = raw_log_odds[steep] / log_odds[steep]
+    print(f"calibration: temperature {temperature:.4f}; uncalibrated / calibrated log-odds over {steep.sum()} cells: "
+          f"{ratio.min() if steep.any() else float('nan'):.5f} to {ratio.max() if steep.any() else float('nan'):.5f}")
+    # float32 probabilities near 0.5 leave the small uncalibrated log-odds about 1e-3 exact.
+    checks.check(steep.sum() >= 5 and np.abs(ratio / temperature - 1).max() < 1e-2,
+                 f"calibrated log-odds are not the uncalibrated ones over T = {temperature}")
+    codes = np.stack([read(os.path.join(work, "maps", "bytes", "b", "probabilities.tif"), k) for k in (1, 2)])
+    expected_codes = np.rint(probabilities[:, ~expected_nodata].astype(np.float64) * 250)
+    checks.check(np.abs(codes[:, ~expected_nodata] - expected_codes).max() <= 1 and
+                 (codes[:, expected_nodata] == 255).all() and codes[:, ~expected_nodata].max() <= 250,
+                 "uint8 probabilities are not round(250 p) with 255 for no data")
+
+    # The map reads a scene as `tinct label` cut its chips: `tinct assess` scores every chip of
+    # the label store (uncalibrated softmax, 6 decimals in predictions.csv); the uncalibrated
+    # map (aoa: false) at the same locations through --points gives the same probabilities.
+    tinct(["assess", "runs/ft", "--on", "a.labels", "--all", "--out", "assess-all"], work)
+    import csv
+    assessed = list(csv.DictReader(open(os.path.join(work, "assess-all", "predictions.csv"))))
+    with open(os.path.join(work, "assessed-points.csv"), "w") as f:
+        f.write("id,x,y\n")
+        for i, row in enumerate(assessed):
+            f.write(f"chip{i},{row['x']},{row['y']}\n")
+    with open(os.path.join(work, "map-raw-a.yaml"), "w") as f:
+        f.write(f"config: map\nrun: runs/ft\noutput: maps/raw-a\nmode: exact\naoa: false\nprobabilities: float32\n"
+                f"sensor: {profile}\nscenes: [{{id: a, path: a.tif, date: 2026-06-01}}]\n")
+    tinct(["map", "map-raw-a.yaml", "--points", "assessed-points.csv"], work)
+    mapped = {row["id"]: row for row in csv.DictReader(open(os.path.join(work, "maps", "raw-a", "points.csv")))}
+    worst = max(abs(float(mapped[f"chip{i}"][f"p_{name}"]) - float(row[f"p_{name}"]))
+                for i, row in enumerate(assessed) for name in ("dark", "bright"))
+    print(f"--points vs tinct assess on {len(assessed)} label chips: max |dp| {worst:.2e}")
+    checks.check(len(assessed) >= 40 and worst < 1e-4, f"the map's points differ from tinct assess by {worst:.2e}")
+
+    # --points from an OGR layer: the first 12 chips as GeoJSON points in longitude and
+    # latitude (transformed by GDAL's osr), the same windows and probabilities as the CSV's.
+    from osgeo import ogr, osr
+    utm, wgs84 = osr.SpatialReference(), osr.SpatialReference()
+    utm.ImportFromEPSG(32632)
+    wgs84.ImportFromEPSG(4326)
+    wgs84.SetAxisMappingStrategy(osr.OAMS_TRADITIONAL_GIS_ORDER)
+    to_wgs84 = osr.CoordinateTransformation(utm, wgs84)
+    vector = ogr.GetDriverByName("GeoJSON").CreateDataSource(os.path.join(work, "assessed.geojson"))
+    layer = vector.CreateLayer("chips", wgs84, ogr.wkbPoint)
+    layer.CreateField(ogr.FieldDefn("id", ogr.OFTString))
+    for i, row in enumerate(assessed[:12]):
+        lon, lat, _ = to_wgs84.TransformPoint(float(row["x"]), float(row["y"]))
+        feature = ogr.Feature(layer.GetLayerDefn())
+        feature.SetField("id", f"chip{i}")
+        feature.SetGeometry(ogr.CreateGeometryFromWkt(f"POINT ({lon!r} {lat!r})"))
+        layer.CreateFeature(feature)
+    vector = None
+    tinct(["map", "map-raw-a.yaml", "--points", "assessed.geojson", "--out", "maps/raw-a-vector"], work)
+    from_vector = list(csv.DictReader(open(os.path.join(work, "maps", "raw-a-vector", "points.csv"))))
+    # (A vector point's id is its feature id: GeoJSON numbers features from 0.)
+    worst = max(abs(float(row[f"p_{name}"]) - float(mapped[f"chip{row['id']}"][f"p_{name}"]))
+                for row in from_vector for name in ("dark", "bright")) if from_vector else float("inf")
+    checks.check(len(from_vector) == 12 and worst < 1e-6,
+                 f"GeoJSON points: {len(from_vector)} rows, max |dp| against the CSV's {worst:.2e}")
+
     # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
     # windows touching neither it nor the unseen patch nor the mask are dark.
     def window_overlaps(r, c, rows, cols):
@@ -284,6 +383,32 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     quicklook = os.path.join(exact, "b", "quicklook.png")
     image = gdal.Open(quicklook)
     checks.check(image is not None and image.RasterXSize >= 600, "quicklook.png missing or small")
+    # Each cell of the quicklook (quicklook.cpp's layout: cells scaled by 600 // cells, the map
+    # 16 px from the left and 28 px from the top) in the colour of classes.tif's colour table;
+    # cells outside the area of applicability (aoa.tif's mask) hatched in grey (90, 90, 90);
+    # no-data cells one colour that is no class's.
+    if image is not None:
+        rgb = np.stack([image.GetRasterBand(k).ReadAsArray() for k in (1, 2, 3)], axis=2)
+        classes_file = gdal.Open(os.path.join(exact, "b", "classes.tif"))  # held: the table lives in it
+        table = classes_file.GetRasterBand(1).GetColorTable()
+        palette = [tuple(table.GetColorEntry(k)[:3]) for k in range(2)]
+        scale = 600 // cells
+        wrong = []
+        for r in range(cells):
+            for c in range(cells):
+                block = rgb[28 + r * scale:28 + (r + 1) * scale, 16 + c * scale:16 + (c + 1) * scale].reshape(-1, 3)
+                colours = {tuple(int(v) for v in x) for x in np.unique(block, axis=0)}
+                if classes[r, c] == 255:
+                    ok = len(colours) == 1 and not colours & set(palette) and (90, 90, 90) not in colours
+                elif mask_band[r, c] == 0:
+                    ok = colours == {palette[classes[r, c]], (90, 90, 90)}
+                else:
+                    ok = colours == {palette[classes[r, c]]}
+                if not ok:
+                    wrong.append((r, c, sorted(colours)[:3]))
+        checks.check(not wrong, f"quicklook cells not drawn as classes.tif and aoa.tif say: {wrong[:5]}")
+        checks.check((mask_band[classes != 255] == 0).any() and (classes == 255).any(),
+                     "scene b's quicklook shows no hatched or no no-data cells")
     os.makedirs(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic"), exist_ok=True)
     if image is not None:
         gdal.Translate(os.path.join(os.environ["TINCT_TEST_DATA"], "map_synthetic", "quicklook.png"), image)

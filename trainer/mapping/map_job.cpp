@@ -2,6 +2,10 @@
 
 #include <yaml-cpp/yaml.h>
 
+#if defined(__GLIBC__)
+#include <malloc.h>
+#endif
+
 #include "mapping/map_caution.hpp"
 #include "mapping/point_predictions.hpp"
 #include "mapping/run_evidence.hpp"
@@ -82,9 +86,22 @@ void build_mosaics(const fs::path& folder, const std::vector<std::string>& scene
   }
 }
 
+// The model's activations for one tile or batch are allocated and freed again for every
+// tile: glibc would hand freed blocks above its thresholds back to the kernel and fault the
+// same pages in anew for the next tile (a fifth of dense's model time in CPU seconds on a
+// 1024 px scene). Keeping up to 256 MB of freed memory for reuse costs no peak memory:
+// the blocks kept are the ones the previous tile used.
+void keep_freed_memory_for_reuse() {
+#if defined(__GLIBC__)
+  mallopt(M_MMAP_THRESHOLD, 64 * 1024 * 1024);
+  mallopt(M_TRIM_THRESHOLD, 256 * 1024 * 1024);
+#endif
+}
+
 }  // namespace
 
 void run_map(const MapSettings& s, const MapJobOptions& options) {
+  keep_freed_memory_for_reuse();
   MapModel model(s.runs);
   log::info("map: " + s.source + ", " + std::to_string(s.inputs.chip_size) + " px windows at stride " +
             std::to_string(s.stride) + " px, " + to_string(s.mode) + " mode, classes " +

@@ -6,11 +6,32 @@
 
 namespace tinct {
 
+namespace {
+
+// The stored integer a label store keeps for `stored` (lround, clamped to 0..65535): for
+// v >= 0, lround(v) is v + 0.5 truncated, exact in double; v <= 0 gives 0. Inlined, unlike
+// std::lround, so a strip's planes encode without a call per value.
+double stored_integer(float stored) {
+  const double clamped = stored > 0 ? std::min(static_cast<double>(stored), 65535.0) : 0.0;
+  return static_cast<double>(static_cast<std::int32_t>(clamped + 0.5));
+}
+
+}  // namespace
+
 float InputEncoding::encode(std::size_t band, float stored) const {
-  double value = stored;
-  if (round_to_integers) value = static_cast<double>(std::clamp(std::lround(stored), 0L, 65535L));
+  const double value = round_to_integers ? stored_integer(stored) : static_cast<double>(stored);
   const auto reflectance = static_cast<float>((value + offset[band]) * scale[band]);
   return (reflectance - mean[band]) * inverse_std[band];
+}
+
+void InputEncoding::encode_plane(std::size_t band, const std::uint8_t* valid, std::size_t count, float* plane) const {
+  const double add = offset[band], times = scale[band];
+  const float centre = mean[band], inverse = inverse_std[band];
+  for (std::size_t i = 0; i < count; ++i) {
+    const double value = round_to_integers ? stored_integer(plane[i]) : static_cast<double>(plane[i]);
+    const float encoded = (static_cast<float>((value + add) * times) - centre) * inverse;
+    plane[i] = valid[i] ? encoded : 0.0f;
+  }
 }
 
 void SceneStrip::read(const Scene& scene, const WindowLayout& layout, const InputEncoding& encoding,
@@ -31,10 +52,7 @@ void SceneStrip::read(const Scene& scene, const WindowLayout& layout, const Inpu
       if (!std::isfinite(plane[i])) valid[i] = 0;
     }
   }
-  for (int b = 0; b < bands_; ++b) {
-    float* plane = values_.data() + area * b;
-    for (std::size_t i = 0; i < area; ++i) plane[i] = valid[i] ? encoding.encode(b, plane[i]) : 0.0f;
-  }
+  for (int b = 0; b < bands_; ++b) encoding.encode_plane(b, valid.data(), area, values_.data() + area * b);
   valid_sum_.assign(static_cast<std::size_t>(height_ + 1) * (width_ + 1), 0);
   for (int y = 0; y < height_; ++y) {
     std::int64_t row_sum = 0;

@@ -19,6 +19,8 @@ struct InputEncoding {
   std::vector<float> mean, inverse_std;  // per band, as the batch assembler uses them
 
   float encode(std::size_t band, float stored) const;
+  // encode() over a band's plane in place; 0 where `valid` is 0.
+  void encode_plane(std::size_t band, const std::uint8_t* valid, std::size_t count, float* plane) const;
 };
 
 class SceneStrip {
