@@ -120,19 +120,46 @@ std::optional<StretchFit> StretchFit::for_types(const std::array<std::string, 3>
 }
 
 void StretchFit::add(const float* red, const float* green, const float* blue, std::size_t n) {
+  if (!ranges_) {
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!std::isfinite(red[i]) || !std::isfinite(green[i]) || !std::isfinite(blue[i])) continue;
+      histograms_[0].add(red[i]);
+      histograms_[1].add(green[i]);
+      histograms_[2].add(blue[i]);
+    }
+    return;
+  }
+  // A bin per integer: an integer value's bin is its offset from the first, counted
+  // here in plain arrays; anything else goes through the histogram's own binning.
+  const float* bands[3] = {red, green, blue};
+  for (int b = 0; b < 3; ++b) {
+    if (integer_counts_[b].empty()) integer_counts_[b].assign((*ranges_)[b].count, 0);
+  }
   for (std::size_t i = 0; i < n; ++i) {
     if (!std::isfinite(red[i]) || !std::isfinite(green[i]) || !std::isfinite(blue[i])) continue;
-    histograms_[0].add(red[i]);
-    histograms_[1].add(green[i]);
-    histograms_[2].add(blue[i]);
+    for (int b = 0; b < 3; ++b) {
+      const double offset = static_cast<double>(bands[b][i]) - (*ranges_)[b].first;
+      const auto bin = static_cast<std::size_t>(offset >= 0 ? offset : 0);
+      if (offset >= 0 && static_cast<double>(bin) == offset && bin < integer_counts_[b].size()) {
+        ++integer_counts_[b][bin];
+      } else {
+        histograms_[b].add(bands[b][i]);
+      }
+    }
   }
 }
 
 ColourComposer StretchFit::composer(const StretchSettings& settings) const {
-  if (histograms_[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
-  const std::array<BandStretch, 3> stretches{make_stretch(histograms_[0], settings),
-                                             make_stretch(histograms_[1], settings),
-                                             make_stretch(histograms_[2], settings)};
+  std::vector<PercentileHistogram> histograms = histograms_;
+  for (int b = 0; b < 3; ++b) {
+    for (std::size_t bin = 0; bin < integer_counts_[b].size(); ++bin) {
+      if (integer_counts_[b][bin] > 0) histograms[b].add_to_bin(bin, integer_counts_[b][bin]);
+    }
+  }
+  if (histograms[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
+  const std::array<BandStretch, 3> stretches{make_stretch(histograms[0], settings),
+                                             make_stretch(histograms[1], settings),
+                                             make_stretch(histograms[2], settings)};
   return ranges_ ? ColourComposer(stretches, *ranges_) : ColourComposer(stretches);
 }
 

@@ -51,6 +51,9 @@ class StretchFit {
   friend class ColourComposer;
   std::vector<PercentileHistogram> histograms_;
   std::optional<std::array<IntegerRange, 3>> ranges_;  // integer colour types
+  // Integer colour: counts per value (bin), kept apart from histograms_ (which take the
+  // values between integers) and merged into them by composer().
+  std::array<std::vector<std::int64_t>, 3> integer_counts_;
 };
 
 class ColourComposer {

@@ -56,6 +56,16 @@ TEST_CASE("integer colour composed by lookup gives the formula's codes", "[pair]
   composer.compose(rgb.data(), n, lab.data(), valid.data());
   CHECK(lab == formula_codes(composer, rgb));
   CHECK(valid[0] == 0);  // the first pixel's red is NaN
+  // The stretch equals one from histograms fed value by value (integers are counted apart).
+  for (std::size_t b = 0; b < 3; ++b) {
+    tinct::PercentileHistogram direct(low, high, static_cast<std::size_t>(high - low) + 1);
+    for (std::size_t i = 0; i < n; ++i) {
+      if (std::isfinite(rgb[i]) && std::isfinite(rgb[n + i]) && std::isfinite(rgb[2 * n + i])) direct.add(rgb[b * n + i]);
+    }
+    const tinct::BandStretch expected = tinct::make_stretch(direct, settings);
+    CHECK(composer.stretches()[b].low == expected.low);
+    CHECK(composer.stretches()[b].high == expected.high);
+  }
 }
 
 TEST_CASE("values round to uint16 as std::lround, clamped to 0..65535", "[store]") {
