@@ -2,6 +2,7 @@
 // function and the Lab f() into tables once and interpolates them in float.
 #include "colour/srgb_lab.hpp"
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 
@@ -152,20 +153,35 @@ double delta_e76(const Lab& first, const Lab& second) {
   return std::sqrt(dL * dL + da * da + db * db);
 }
 
-void srgb_to_lab_codes(const float* r, const float* g, const float* b, std::size_t n,
-                       std::uint8_t* L, std::uint8_t* a, std::uint8_t* b_out) {
+float srgb_to_linear_fast(float v) { return fast_path().linear(clamp01f(v)); }
+
+void linear_to_lab_codes(const float* r, const float* g, const float* b, std::size_t n,
+                         std::uint8_t* L, std::uint8_t* a, std::uint8_t* b_out) {
   const FastPath& t = fast_path();
   const auto& m = t.to_unit_xyz;
   for (std::size_t i = 0; i < n; ++i) {
-    const float lr = t.linear(clamp01f(r[i]));
-    const float lg = t.linear(clamp01f(g[i]));
-    const float lb = t.linear(clamp01f(b[i]));
-    const float fx = t.f(m[0][0] * lr + m[0][1] * lg + m[0][2] * lb);
-    const float fy = t.f(m[1][0] * lr + m[1][1] * lg + m[1][2] * lb);
-    const float fz = t.f(m[2][0] * lr + m[2][1] * lg + m[2][2] * lb);
+    const float fx = t.f(m[0][0] * r[i] + m[0][1] * g[i] + m[0][2] * b[i]);
+    const float fy = t.f(m[1][0] * r[i] + m[1][1] * g[i] + m[1][2] * b[i]);
+    const float fz = t.f(m[2][0] * r[i] + m[2][1] * g[i] + m[2][2] * b[i]);
     L[i] = to_code_fast((116.0f * fy - 16.0f) * 2.55f);
     a[i] = to_code_fast(500.0f * (fx - fy) + 128.0f);
     b_out[i] = to_code_fast(200.0f * (fy - fz) + 128.0f);
+  }
+}
+
+void srgb_to_lab_codes(const float* r, const float* g, const float* b, std::size_t n,
+                       std::uint8_t* L, std::uint8_t* a, std::uint8_t* b_out) {
+  constexpr std::size_t kRun = 1024;  // linear values of a run of pixels stay in cache
+  std::array<float, 3 * kRun> linear;
+  for (std::size_t start = 0; start < n; start += kRun) {
+    const std::size_t count = std::min(kRun, n - start);
+    for (std::size_t i = 0; i < count; ++i) {
+      linear[i] = srgb_to_linear_fast(r[start + i]);
+      linear[kRun + i] = srgb_to_linear_fast(g[start + i]);
+      linear[2 * kRun + i] = srgb_to_linear_fast(b[start + i]);
+    }
+    linear_to_lab_codes(linear.data(), linear.data() + kRun, linear.data() + 2 * kRun, count, L + start,
+                        a + start, b_out + start);
   }
 }
 

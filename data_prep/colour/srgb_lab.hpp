@@ -37,5 +37,10 @@ double delta_e76(const Lab& first, const Lab& second);
 // 0 (mask invalid pixels separately).
 void srgb_to_lab_codes(const float* r, const float* g, const float* b, std::size_t n,
                        std::uint8_t* L, std::uint8_t* a, std::uint8_t* b_out);
+// The two steps of srgb_to_lab_codes, for callers that tabulate the first per value:
+// sRGB (clamped, NaN as 0) to linear light, then planar linear RGB to Lab codes.
+float srgb_to_linear_fast(float v);
+void linear_to_lab_codes(const float* r, const float* g, const float* b, std::size_t n,
+                         std::uint8_t* L, std::uint8_t* a, std::uint8_t* b_out);
 
 }  // namespace tinct

@@ -31,6 +31,11 @@ class PercentileHistogram {
     ++counts_[bin];
     ++count_;
   }
+  // Adds `count` values that add() would put in `bin` (for callers that bin themselves).
+  void add_to_bin(std::size_t bin, std::int64_t count) {
+    counts_[bin] += count;
+    count_ += count;
+  }
   std::int64_t count() const { return count_; }
 
   // percent in [0, 100]; fails (runtime) on an empty histogram.

@@ -62,7 +62,45 @@ std::array<ValueRange, 3> measured_ranges(const ColourReader& read, const Target
   return ranges;
 }
 
+IntegerRange integer_values(const ValueRange& range) {
+  return {range.min, static_cast<std::size_t>(range.max - range.min) + 1};
+}
+
 }  // namespace
+
+// Linear light of every integer value of a band's type, through the band's stretch:
+// then a pixel of integer colour costs a lookup instead of the stretch and the sRGB
+// transfer function, with the same float as the formula (any other value takes it).
+class ColourComposer::LinearTable {
+ public:
+  LinearTable() = default;
+  LinearTable(const BandStretch& stretch, const IntegerRange& range)
+      : stretch_(stretch), first_(static_cast<float>(range.first)), values_(range.count) {
+    for (std::size_t i = 0; i < range.count; ++i) values_[i] = formula(first_ + static_cast<float>(i));
+  }
+
+  float operator()(float v) const {
+    const float offset = v - first_;  // exact for the integers of the range
+    if (offset >= 0.0f && offset < static_cast<float>(values_.size())) {
+      const auto i = static_cast<std::size_t>(offset);
+      if (static_cast<float>(i) == offset) return values_[i];
+    }
+    return formula(v);  // NaN, or a value between integers (a warped view)
+  }
+
+ private:
+  float formula(float v) const { return srgb_to_linear_fast(static_cast<float>(stretch_.apply(v))); }
+
+  BandStretch stretch_{};
+  float first_ = 0;
+  std::vector<float> values_;
+};
+
+ColourComposer::ColourComposer(std::array<BandStretch, 3> stretches, const std::array<IntegerRange, 3>& ranges)
+    : stretches_(stretches),
+      tables_(std::make_shared<const std::array<LinearTable, 3>>(std::array<LinearTable, 3>{
+          LinearTable(stretches[0], ranges[0]), LinearTable(stretches[1], ranges[1]),
+          LinearTable(stretches[2], ranges[2])})) {}
 
 ColourComposer ColourComposer::for_byte_colour() {
   const BandStretch identity{0, 255, 1.0};
@@ -71,27 +109,58 @@ ColourComposer ColourComposer::for_byte_colour() {
 
 std::optional<StretchFit> StretchFit::for_types(const std::array<std::string, 3>& data_types) {
   StretchFit fit;
-  for (const auto& type : data_types) {
-    const auto range = integer_range(type);
+  fit.ranges_.emplace();
+  for (int b = 0; b < 3; ++b) {
+    const auto range = integer_range(data_types[b]);
     if (!range) return std::nullopt;
     fit.histograms_.emplace_back(range->min, range->max, range->bins);
+    (*fit.ranges_)[b] = integer_values(*range);
   }
   return fit;
 }
 
 void StretchFit::add(const float* red, const float* green, const float* blue, std::size_t n) {
+  if (!ranges_) {
+    for (std::size_t i = 0; i < n; ++i) {
+      if (!std::isfinite(red[i]) || !std::isfinite(green[i]) || !std::isfinite(blue[i])) continue;
+      histograms_[0].add(red[i]);
+      histograms_[1].add(green[i]);
+      histograms_[2].add(blue[i]);
+    }
+    return;
+  }
+  // A bin per integer: an integer value's bin is its offset from the first, counted
+  // here in plain arrays; anything else goes through the histogram's own binning.
+  const float* bands[3] = {red, green, blue};
+  for (int b = 0; b < 3; ++b) {
+    if (integer_counts_[b].empty()) integer_counts_[b].assign((*ranges_)[b].count, 0);
+  }
   for (std::size_t i = 0; i < n; ++i) {
     if (!std::isfinite(red[i]) || !std::isfinite(green[i]) || !std::isfinite(blue[i])) continue;
-    histograms_[0].add(red[i]);
-    histograms_[1].add(green[i]);
-    histograms_[2].add(blue[i]);
+    for (int b = 0; b < 3; ++b) {
+      const double offset = static_cast<double>(bands[b][i]) - (*ranges_)[b].first;
+      const auto bin = static_cast<std::size_t>(offset >= 0 ? offset : 0);
+      if (offset >= 0 && static_cast<double>(bin) == offset && bin < integer_counts_[b].size()) {
+        ++integer_counts_[b][bin];
+      } else {
+        histograms_[b].add(bands[b][i]);
+      }
+    }
   }
 }
 
 ColourComposer StretchFit::composer(const StretchSettings& settings) const {
-  if (histograms_[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
-  return ColourComposer({make_stretch(histograms_[0], settings), make_stretch(histograms_[1], settings),
-                         make_stretch(histograms_[2], settings)});
+  std::vector<PercentileHistogram> histograms = histograms_;
+  for (int b = 0; b < 3; ++b) {
+    for (std::size_t bin = 0; bin < integer_counts_[b].size(); ++bin) {
+      if (integer_counts_[b][bin] > 0) histograms[b].add_to_bin(bin, integer_counts_[b][bin]);
+    }
+  }
+  if (histograms[0].count() == 0) throw NoValidColour("the colour bands hold no valid pixel");
+  const std::array<BandStretch, 3> stretches{make_stretch(histograms[0], settings),
+                                             make_stretch(histograms[1], settings),
+                                             make_stretch(histograms[2], settings)};
+  return ranges_ ? ColourComposer(stretches, *ranges_) : ColourComposer(stretches);
 }
 
 ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& grid,
@@ -110,6 +179,10 @@ ColourComposer ColourComposer::fit(const ColourReader& read, const TargetGrid& g
   StretchFit fit;
   fit.histograms_ = std::move(histograms);
   for_each_strip(read, grid, [&](const float* rgb, std::size_t n) { fit.add(rgb, rgb + n, rgb + 2 * n, n); });
+  if (all_integer) {
+    fit.ranges_.emplace();
+    for (int b = 0; b < 3; ++b) (*fit.ranges_)[b] = integer_values(ranges[b]);
+  }
   return fit.composer(settings);
 }
 
@@ -121,8 +194,16 @@ void ColourComposer::stretched(const float* rgb, std::size_t n, float* out) cons
 
 void ColourComposer::compose(const float* rgb, std::size_t n, std::uint8_t* lab, std::uint8_t* valid) const {
   std::vector<float> srgb(3 * n);
-  stretched(rgb, n, srgb.data());
-  srgb_to_lab_codes(srgb.data(), srgb.data() + n, srgb.data() + 2 * n, n, lab, lab + n, lab + 2 * n);
+  if (tables_) {
+    for (int b = 0; b < 3; ++b) {
+      const LinearTable& table = (*tables_)[b];
+      for (std::size_t i = 0; i < n; ++i) srgb[b * n + i] = table(rgb[b * n + i]);
+    }
+    linear_to_lab_codes(srgb.data(), srgb.data() + n, srgb.data() + 2 * n, n, lab, lab + n, lab + 2 * n);
+  } else {
+    stretched(rgb, n, srgb.data());
+    srgb_to_lab_codes(srgb.data(), srgb.data() + n, srgb.data() + 2 * n, n, lab, lab + n, lab + 2 * n);
+  }
   for (std::size_t i = 0; i < n; ++i) {
     if (!all_finite(rgb, n, i)) valid[i] = 0;
   }

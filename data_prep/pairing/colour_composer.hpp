@@ -7,6 +7,7 @@
 #include <array>
 #include <cstdint>
 #include <functional>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -29,6 +30,12 @@ class NoValidColour : public Error {
 
 class ColourComposer;
 
+// The first value and the count of every integer a colour band's type can hold.
+struct IntegerRange {
+  double first;
+  std::size_t count;
+};
+
 // The per-band percentile histograms of the stretch, fed strip by strip by whoever
 // reads the pixels (pair's single pass). Integer colour types only: their value range
 // is known before the first pixel.
@@ -43,6 +50,10 @@ class StretchFit {
  private:
   friend class ColourComposer;
   std::vector<PercentileHistogram> histograms_;
+  std::optional<std::array<IntegerRange, 3>> ranges_;  // integer colour types
+  // Integer colour: counts per value (bin), kept apart from histograms_ (which take the
+  // values between integers) and merged into them by composer().
+  std::array<std::vector<std::int64_t>, 3> integer_counts_;
 };
 
 class ColourComposer {
@@ -63,10 +74,14 @@ class ColourComposer {
 
  private:
   friend class StretchFit;
+  class LinearTable;
   explicit ColourComposer(std::array<BandStretch, 3> stretches) : stretches_(stretches) {}
+  // Integer colour: each band's stretch and transfer tabulated over its type's range.
+  ColourComposer(std::array<BandStretch, 3> stretches, const std::array<IntegerRange, 3>& ranges);
   void stretched(const float* rgb, std::size_t n, float* out) const;
 
   std::array<BandStretch, 3> stretches_;
+  std::shared_ptr<const std::array<LinearTable, 3>> tables_;  // null unless integer colour
 };
 
 }  // namespace tinct

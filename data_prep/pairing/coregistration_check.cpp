@@ -28,21 +28,29 @@ std::string format_px(double value) {
 
 }  // namespace
 
+ShiftWindows shift_windows(const TargetGrid& grid, const CoregistrationSettings& settings) {
+  const int window = std::min({settings.window, grid.width, grid.height});
+  if (window < kMinShiftWindow) return {};
+  const int per_axis = std::max(1, static_cast<int>(std::lround(std::sqrt(double(settings.windows)))));
+  return {window, spread(grid.width, window, per_axis), spread(grid.height, window, per_axis)};
+}
+
 // Windows spread over the scene are laid side by side into one mosaic, so the
 // estimator sees them all at once and can drop flat windows (water, cloud) by
 // comparing their texture with the others'.
 ShiftReport measure_colour_shift(const PlaneReader& proxy, const ColourReader& colour,
                                  const ColourComposer& composer, const TargetGrid& grid,
                                  const CoregistrationSettings& settings) {
-  const int window = std::min({settings.window, grid.width, grid.height});
-  if (window < kMinShiftWindow) return {};  // too small to measure: judge_shift says so
+  const ShiftWindows windows = shift_windows(grid, settings);
+  if (windows.size == 0) return {};  // too small to measure: judge_shift says so
+  const int window = windows.size;
   const int per_axis = std::max(1, static_cast<int>(std::lround(std::sqrt(double(settings.windows)))));
   const std::size_t n = static_cast<std::size_t>(window) * window;
   std::vector<float> rgb(3 * n), plane(n), lightness(n);
   cv::Mat reference(per_axis * window, per_axis * window, CV_32FC1);
   cv::Mat moving(per_axis * window, per_axis * window, CV_32FC1);
-  const auto rows = spread(grid.height, window, per_axis);
-  const auto cols = spread(grid.width, window, per_axis);
+  const auto& rows = windows.rows;
+  const auto& cols = windows.cols;
   for (std::size_t ty = 0; ty < rows.size(); ++ty) {
     for (std::size_t tx = 0; tx < cols.size(); ++tx) {
       proxy(cols[tx], rows[ty], window, window, plane.data());

@@ -5,6 +5,7 @@
 
 #include <functional>
 #include <string>
+#include <vector>
 
 #include "pairing/colour_composer.hpp"
 #include "pairing/pair_config.hpp"
@@ -20,6 +21,14 @@ struct ShiftReport {
   double magnitude_m = 0;
   int windows = 0;  // windows that gave an estimate
 };
+
+// The square windows the measurement reads: `size` px, corners at every (col, row)
+// pair of `cols` x `rows`.
+struct ShiftWindows {
+  int size = 0;  // 0: the grid is too small to measure
+  std::vector<int> cols, rows;
+};
+ShiftWindows shift_windows(const TargetGrid& grid, const CoregistrationSettings& settings);
 
 ShiftReport measure_colour_shift(const PlaneReader& proxy, const ColourReader& colour,
                                  const ColourComposer& composer, const TargetGrid& grid,

@@ -12,6 +12,7 @@
 #include "pairing/colour_composer.hpp"
 #include "pairing/colour_spill.hpp"
 #include "pairing/coregistration_check.hpp"
+#include "pairing/window_capture.hpp"
 #include "raster/scene.hpp"
 #include "util/log.hpp"
 #include "util/progress.hpp"
@@ -77,12 +78,31 @@ class ScenePairer {
 
   const Scene& scene() const { return scene_; }
 
-  ColourReader colour_reader() const {
-    return [this](int col, int row, int w, int h, float* out) { read_colour(col, row, w, h, out); };
+  // Readers of the colour and of the luminance proxy: from `capture` where it holds the
+  // window, else from the scene.
+  ColourReader colour_reader(const WindowCapture* capture = nullptr) const {
+    return [this, capture](int col, int row, int w, int h, float* out) {
+      if (capture && capture->read(col, row, w, h, plan_.colour, out)) return;
+      read_colour(col, row, w, h, out);
+    };
   }
 
-  PlaneReader proxy_reader() const {
-    return [this](int col, int row, int w, int h, float* out) { read_proxy(col, row, w, h, out); };
+  PlaneReader proxy_reader(const WindowCapture* capture = nullptr) const {
+    return [this, capture](int col, int row, int w, int h, float* out) { read_proxy(col, row, w, h, capture, out); };
+  }
+
+  // The co-registration check's windows, kept from the single pass's strips.
+  WindowCapture shift_capture(const CoregistrationSettings& settings) const {
+    const ShiftWindows windows = shift_windows(scene_.grid(), settings);
+    std::vector<WindowCapture::Window> corners;
+    for (int row : windows.rows) {
+      for (int col : windows.cols) corners.push_back({col, row});
+    }
+    std::vector<std::size_t> planes = plan_.colour;
+    for (std::size_t p : plan_.proxy) {
+      if (std::find(planes.begin(), planes.end(), p) == planes.end()) planes.push_back(p);
+    }
+    return WindowCapture(windows.size > 0 ? corners : std::vector<WindowCapture::Window>{}, windows.size, planes);
   }
 
   std::array<std::string, 3> colour_types() const {
@@ -155,16 +175,13 @@ class ScenePairer {
     rgb.resize(3 * n);
     cut(plan_.colour, rgb.data());
     valid.assign(n, 1);
-    for (std::size_t k = 0; k < plan_.inputs.size(); ++k) {
-      for (std::size_t i = 0; i < n; ++i) {
-        if (!std::isfinite(inputs[k * n + i])) valid[i] = 0;
-      }
-    }
+    const auto keep_finite = [flags = valid.data(), n](const float* plane) {  // branch-free: it vectorises
+      for (std::size_t i = 0; i < n; ++i) flags[i] &= static_cast<std::uint8_t>(std::isfinite(plane[i]));
+    };
+    for (std::size_t k = 0; k < plan_.inputs.size(); ++k) keep_finite(inputs.data() + k * n);
+    for (std::size_t k = 0; k < 3; ++k) keep_finite(rgb.data() + k * n);
     std::size_t count = 0;
-    for (std::size_t i = 0; i < n; ++i) {
-      if (!std::isfinite(rgb[i]) || !std::isfinite(rgb[n + i]) || !std::isfinite(rgb[2 * n + i])) valid[i] = 0;
-      count += valid[i];
-    }
+    for (std::size_t i = 0; i < n; ++i) count += valid[i];
     return static_cast<double>(count) / static_cast<double>(n);
   }
 
@@ -219,13 +236,18 @@ class ScenePairer {
     copy_planes(planes.data(), plan_.colour, n, out);
   }
 
-  void read_proxy(int col, int row, int w, int h, float* out) const {
+  void read_proxy(int col, int row, int w, int h, const WindowCapture* capture, float* out) const {
     const std::size_t n = static_cast<std::size_t>(w) * h;
     std::vector<float> planes(plan_.bands.size() * n);
-    scene_.read(col, row, w, h, planes.data());
+    std::vector<std::size_t> where = plan_.proxy;  // each proxy band's plane in `planes`
+    if (capture && capture->read(col, row, w, h, plan_.proxy, planes.data())) {
+      for (std::size_t k = 0; k < where.size(); ++k) where[k] = k;
+    } else {
+      scene_.read(col, row, w, h, planes.data());
+    }
     for (std::size_t i = 0; i < n; ++i) {
       double sum = 0;
-      for (std::size_t p : plan_.proxy) sum += planes[p * n + i];
+      for (std::size_t p : where) sum += planes[p * n + i];
       out[i] = static_cast<float>(sum / plan_.proxy.size());  // NaN if any band is
     }
   }
@@ -275,9 +297,32 @@ void pair_by_windows(const PairConfig& config, const SceneSpec& spec, const Scen
   progress.finish();
 }
 
+// The parked colour of `chips` chips to Lab codes, in batches whose halves are
+// composed on two threads, then added to the store in chip order.
+void add_parked_colour(ColourSpill& spill, std::int64_t chips, const ColourComposer& composer, std::size_t n,
+                       StoreBuilder& store) {
+  constexpr std::int64_t kBatch = 64;
+  std::vector<float> rgb(static_cast<std::size_t>(kBatch) * 3 * n);
+  std::vector<std::uint8_t> lab(rgb.size());
+  const auto compose = [&](std::int64_t from, std::int64_t to) {
+    std::vector<std::uint8_t> ignored(n);
+    for (std::int64_t c = from; c < to; ++c) {
+      composer.compose(rgb.data() + c * 3 * n, n, lab.data() + c * 3 * n, ignored.data());
+    }
+  };
+  for (std::int64_t first = 0; first < chips; first += kBatch) {
+    const std::int64_t count = std::min(kBatch, chips - first);
+    for (std::int64_t c = 0; c < count; ++c) spill.get(rgb.data() + c * 3 * n);
+    auto half = std::async(std::launch::async, compose, count / 2, count);
+    compose(0, count / 2);
+    half.get();
+    for (std::int64_t c = 0; c < count; ++c) store.add_colour(lab.data() + c * 3 * n);
+  }
+}
+
 // Every pixel decoded once: strips of whole tile rows (GDAL decodes a strip's tiles on
-// all cores), the stretch histogram fed from the same strips, the chips' colour parked
-// until the stretch is known and then converted to Lab.
+// all cores), the stretch histogram and the co-registration windows taken from the same
+// strips, the chips' colour parked until the stretch is known and then converted to Lab.
 void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const ScenePairer& pairer,
                       const std::vector<ChipWindow>& windows, StretchFit fit, StoreBuilder& store,
                       ScenePairing& result) {
@@ -285,8 +330,9 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
   const int size = config.chips.size;
   const std::size_t n = static_cast<std::size_t>(size) * size;
   ColourSpill spill(3 * n);
+  WindowCapture kept_windows = pairer.shift_capture(config.coregistration);
   std::vector<float> inputs, rgb;
-  std::vector<std::uint8_t> lab(3 * n), valid;
+  std::vector<std::uint8_t> valid;
   Progress progress("pair " + spec.id, result.tally.planned, "chips");
   // Strips of whole chip rows, each read while the one before is cut into chips.
   struct Strip {
@@ -315,6 +361,7 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
     std::swap(strip, next);
     read_ahead(k + 1);
     const Strip& s = strips[k];
+    kept_windows.add_strip(strip.data(), grid.width, s.top, s.rows);
     pairer.count_colour_rows(counted, s.top, fit);
     if (s.top + s.rows > counted) pairer.count_colour(strip, s.top, s.rows, std::max(s.top, counted), s.top + s.rows, fit);
     counted = std::max(counted, s.top + s.rows);
@@ -332,19 +379,17 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
   }
   pairer.count_colour_rows(counted, grid.height, fit);
   progress.finish();
-
   const ColourComposer composer = fit.composer(config.colour.stretch);
-  const ShiftReport shift = measure_colour_shift(pairer.proxy_reader(), pairer.colour_reader(), composer, grid,
-                                                 config.coregistration);
+  // The co-registration check runs beside the colour's conversion: neither needs the other.
+  auto measuring = std::async(std::launch::async, [&] {
+    return measure_colour_shift(pairer.proxy_reader(&kept_windows), pairer.colour_reader(&kept_windows), composer,
+                                grid, config.coregistration);
+  });
+  spill.rewind();
+  add_parked_colour(spill, result.tally.written, composer, n, store);
+  const ShiftReport shift = measuring.get();
   judge_shift(shift, config.coregistration, spec.id);
   result.scene = describe(spec, pairer.scene(), shift);
-  spill.rewind();
-  std::vector<std::uint8_t> ignored(n);
-  for (std::int64_t chip = 0; chip < result.tally.written; ++chip) {
-    spill.get(rgb.data());
-    composer.compose(rgb.data(), n, lab.data(), ignored.data());
-    store.add_colour(lab.data());
-  }
 }
 
 }  // namespace

@@ -97,7 +97,13 @@ AlignedSource::AlignedSource(const fs::path& file, std::vector<int> bands, const
     nodata_.push_back(info.nodata ? info.nodata : nodata);
   }
   data_type_ = source_.band(bands_.front()).data_type;
+  unsigned16_ = true;
+  for (int band : bands_) {
+    const std::string type = source_.band(band).data_type;
+    unsigned16_ = unsigned16_ && (type == "Byte" || type == "UInt16");
+  }
   if (lies_on_grid(source_, grid)) return;
+  unsigned16_ = false;
   method_ = choose_resampling(std::fabs(source_.geotransform()[1]), grid.pixel_size(), settings);
   selection_.emplace(Raster::adopt(GDALDataset::FromHandle(select_bands(source_, bands_, nodata_)), file));
   warped_view_.emplace(Raster::adopt(warp_onto(selection_->handle(), file, grid, method_), file));
@@ -108,6 +114,10 @@ double AlignedSource::source_pixel_size() const { return std::fabs(source_.geotr
 
 void AlignedSource::read(int col, int row, int width, int height, float* out) const {
   const std::size_t plane = static_cast<std::size_t>(width) * height;
+  if (unsigned16_) {
+    read_unsigned16(col, row, width, height, out);
+    return;
+  }
   std::vector<int> view_bands = bands_;
   if (warped_) {
     for (std::size_t k = 0; k < view_bands.size(); ++k) view_bands[k] = static_cast<int>(k) + 1;
@@ -119,6 +129,28 @@ void AlignedSource::read(int col, int row, int width, int height, float* out) co
     float* values = out + k * plane;
     for (std::size_t i = 0; i < plane; ++i) {
       if (values[i] == nodata) values[i] = std::numeric_limits<float>::quiet_NaN();
+    }
+  }
+}
+
+// GDAL copies the decoded tiles as 16-bit values, then one pass widens them and marks
+// nodata: fewer bytes moved than GDAL's widening followed by a nodata pass.
+void AlignedSource::read_unsigned16(int col, int row, int width, int height, float* out) const {
+  const std::size_t plane = static_cast<std::size_t>(width) * height;
+  staging_.resize(bands_.size() * plane);
+  source_.read_bands(bands_, col, row, width, height, staging_.data());
+  const float nan = std::numeric_limits<float>::quiet_NaN();
+  for (std::size_t k = 0; k < bands_.size(); ++k) {
+    const std::uint16_t* from = staging_.data() + k * plane;
+    float* values = out + k * plane;
+    if (!nodata_[k]) {
+      for (std::size_t i = 0; i < plane; ++i) values[i] = from[i];
+      continue;
+    }
+    const float nodata = static_cast<float>(*nodata_[k]);
+    for (std::size_t i = 0; i < plane; ++i) {
+      const float v = from[i];
+      values[i] = v == nodata ? nan : v;
     }
   }
 }

@@ -5,6 +5,7 @@
 // interleaved tile is decoded once for all of them. Windowed reads only.
 #pragma once
 
+#include <cstdint>
 #include <filesystem>
 #include <optional>
 #include <string>
@@ -36,6 +37,8 @@ class AlignedSource {
   void read(int col, int row, int width, int height, float* out) const;
 
  private:
+  void read_unsigned16(int col, int row, int width, int height, float* out) const;
+
   std::filesystem::path file_;
   std::vector<int> bands_;
   // Declared in dependency order, so each outlives the VRTs built on it.
@@ -46,6 +49,8 @@ class AlignedSource {
   Resampling method_ = Resampling::nearest;
   std::vector<std::optional<double>> nodata_;
   std::string data_type_;
+  bool unsigned16_ = false;  // read as uint16 and widened here (every band Byte or UInt16, not warped)
+  mutable std::vector<std::uint16_t> staging_;
 };
 
 }  // namespace tinct

@@ -158,6 +158,16 @@ void Raster::read(int index, int col, int row, int width, int height, float* out
 
 void Raster::read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
                         float* out) const {
+  read_bands_as(indices, col, row, width, height, GDT_Float32, out);
+}
+
+void Raster::read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
+                        std::uint16_t* out) const {
+  read_bands_as(indices, col, row, width, height, GDT_UInt16, out);
+}
+
+void Raster::read_bands_as(const std::vector<int>& indices, int col, int row, int width, int height, int gdal_type,
+                           void* out) const {
   for (int index : indices) {
     if (index < 1 || index > band_count()) {
       fail_runtime(path_.string() + ": band " + std::to_string(index) + " does not exist (the raster has " +
@@ -170,8 +180,8 @@ void Raster::read_bands(const std::vector<int>& indices, int col, int row, int w
   }
   std::vector<int> map(indices);
   const CPLErr status = dataset_->RasterIO(GF_Read, col, row, width, height, out, width, height,
-                                           GDT_Float32, static_cast<int>(map.size()), map.data(), 0, 0,
-                                           0, nullptr);
+                                           static_cast<GDALDataType>(gdal_type), static_cast<int>(map.size()),
+                                           map.data(), 0, 0, 0, nullptr);
   if (status != CE_None) {
     fail_runtime(path_.string() + ": read failed at col " + std::to_string(col) + ", row " +
                  std::to_string(row) + ": " + last_gdal_message() + "; the file may be truncated or corrupt");

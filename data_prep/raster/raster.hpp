@@ -3,6 +3,7 @@
 #pragma once
 
 #include <array>
+#include <cstdint>
 #include <filesystem>
 #include <memory>
 #include <optional>
@@ -59,6 +60,9 @@ class Raster {
   // so a pixel-interleaved file decodes each tile once.
   void read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
                   float* out) const;
+  // The same as unsigned 16-bit values (for Byte and UInt16 bands: half the bytes to copy).
+  void read_bands(const std::vector<int>& indices, int col, int row, int width, int height,
+                  std::uint16_t* out) const;
   // Metadata item of the dataset (domain "" by default), "" when absent.
   std::string metadata(const std::string& key, const std::string& domain = "") const;
   // Every KEY=VALUE item of the default domain: of the dataset (band 0) or of a band.
@@ -68,6 +72,8 @@ class Raster {
 
  private:
   Raster(std::filesystem::path path, GDALDataset* dataset);
+  void read_bands_as(const std::vector<int>& indices, int col, int row, int width, int height, int gdal_type,
+                     void* out) const;
   std::filesystem::path path_;
   GDALDataset* dataset_ = nullptr;
 };

@@ -8,7 +8,9 @@ GeoTIFF cut into 64 px chips, in interleaved rounds (best and median):
   once, on all cores, and the colour stretch takes its histogram from the same pass);
 - peak resident memory of tinct pair (goal: under 400 MB);
 - the naive way: gdal_translate -srcwin per chip (a sample of chips, extrapolated);
-- scaling: tinct pair over 1, 2 and 4 copies of the scene (should be linear)."""
+- scaling: tinct pair over 1, 2 and 4 copies of the scene (should be linear);
+- tinct's start-up alone (`tinct --version`: loading its libraries, LibTorch's among them),
+  a fixed cost inside every pair time above."""
 import os
 import resource
 import statistics
@@ -95,6 +97,7 @@ def main(TINCT, WORK):
                 pairs.append(seconds(pair_cmd))
                 pair_cpu.append(CPU[-1])
     pair_peak = peak_rss_mb(pair_cmd)
+    startup = min(seconds([TINCT, "--version"]) for _ in range(3))
     scaling = {}
     for r in range(max(1, ROUNDS - 1)):
         for copies in (1, 2, 4):
@@ -112,7 +115,9 @@ def main(TINCT, WORK):
     d_best, d_med = min(decodes), statistics.median(decodes)
     p_best, p_med = min(pairs), statistics.median(pairs)
     one = min(scaling[1])
+    from bench_common import machine_line  # imports this module: not at the top
     rows = [
+        ("machine", machine_line(), ""),
         ("scene", f"{SIZE} x {SIZE} x {BANDS} uint16, tiled 256, DEFLATE, {ROUNDS} interleaved rounds", ""),
         ("GDAL decode, 1 thread (floor)", f"best {d_best:.2f} s, median {d_med:.2f} s", ""),
         ("tinct pair, whole scene", f"best {p_best:.2f} s, median {p_med:.2f} s ({chips / p_best:.0f} chips/s)", ""),
@@ -120,6 +125,7 @@ def main(TINCT, WORK):
         ("CPU seconds, decode and pair", f"best {min(decode_cpu):.2f} s and {min(pair_cpu):.2f} s: "
                                          f"{min(pair_cpu) / min(decode_cpu):.2f}x", ""),
         ("tinct pair peak resident memory", f"{pair_peak:.0f} MB", "goal < 400 MB"),
+        ("tinct start-up (--version)", f"best {startup:.2f} s of 3, inside every pair time", ""),
         ("naive gdal_translate -srcwin", f"{naive_rate:.1f} chips/s (~{chips / naive_rate:.0f} s for the scene)", ""),
         ("tinct pair speed-up over naive", f"{(chips / p_best) / naive_rate:.0f}x", ""),
     ]
