@@ -67,7 +67,7 @@ def task_classes(path):
                 "visible": (visible, ["dark", "middle", "bright"])}
 
 
-def write_inputs(work, l7, tasks, ds, threads, tinct, steps):
+def write_inputs(work, l7, tasks, ds, threads, tinct, steps, validation_every=None):
     gt = ds.GetGeoTransform()
     common = (f"sensor: landsat7-etm\ninputs: [B4, B5, B7]\ngrid: {{resolution: 28.5}}\n"
               f"scenes: [{{path: {l7}, date: 2000-02-01}}]\n")
@@ -97,7 +97,7 @@ stores: [l7.pairs]
 output: runs/pre
 model: {{encoder: compact, width: 0.5}}
 train: {{steps: {steps}, batch: 32, lr: 0.003, warmup: 20, seed: 1}}
-validation: {{every: {steps}, chips: 64, previews: 0}}
+validation: {{every: {validation_every or steps}, chips: 64, previews: 0}}
 """)
         if not os.path.exists(os.path.join(work, "l7.pairs")):
             run([tinct, "--threads", threads, "pair", "pair.yaml"], work, "pair")

@@ -12,7 +12,8 @@ labels per class. Each study's summary.csv, summary.json and report.html land in
 WORK/studies/TASK; --keep DIR copies them (and the configs) to DIR/TASK.
 
 usage: l7_study.py TINCT L7_ETMs.tif WORK [--seeds 1 2 3 4 5] [--tasks index visible]
-                   [--arms A B ...] [--pretrain-steps 400] [--parallel 2] [--keep DIR]
+                   [--arms A B ...] [--pretrain-steps 400] [--validation-every N]
+                   [--parallel 2] [--keep DIR]
 """
 import argparse
 import os
@@ -23,15 +24,23 @@ import sys
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 from heads_study import task_classes, write_inputs  # noqa: E402
 
-# name: finetune overrides. `colour_probe` is the candidate default for pretrained runs.
+# name: finetune overrides. `colour_probe` and `colour_bands_probe` (the predicted colour with
+# the label pixel's own input bands) are the candidate defaults for pretrained runs.
 ARMS = [
     ("colour_probe", "{init: {from: pretrain, run: runs/pre}, head: {pool: colour, kind: linear_probe}}"),
+    ("colour_bands_probe",
+     "{init: {from: pretrain, run: runs/pre}, head: {pool: colour, kind: linear_probe, input_bands: true}}"),
+    ("colour_bands_knn",
+     "{init: {from: pretrain, run: runs/pre}, head: {pool: colour, kind: knn, k: 5, input_bands: true}}"),
     ("scratch", "{init: {from: scratch, run: runs/pre}, head: {pool: global, kind: trained}}"),
     ("probe", "{init: {from: pretrain, run: runs/pre}, head: {pool: global, kind: linear_probe}}"),
     ("probe_random", "{init: {from: scratch, run: runs/pre}, head: {pool: global, kind: linear_probe}}"),
     ("pretrained", "{init: {from: pretrain, run: runs/pre}, head: {pool: global, kind: trained}}"),
 ]
 COMPARE = [("colour_probe", "random_forest"), ("colour_probe", "logistic_regression"),
+           ("colour_bands_probe", "random_forest"), ("colour_bands_probe", "logistic_regression"),
+           ("colour_bands_probe", "colour_probe"), ("colour_bands_knn", "random_forest"),
+           ("colour_bands_knn", "logistic_regression"), ("colour_bands_probe", "scratch"),
            ("colour_probe", "scratch"), ("pretrained", "scratch"), ("probe", "probe_random"),
            ("colour_probe", "pretrained")]
 BASELINES = {"random_forest", "logistic_regression"}
@@ -66,6 +75,8 @@ def main():
     p.add_argument("--seeds", type=int, nargs="+", default=[1, 2, 3, 4, 5])
     p.add_argument("--tasks", nargs="+", default=["index", "visible"])
     p.add_argument("--pretrain-steps", type=int, default=400)
+    p.add_argument("--validation-every", type=int,
+                   help="pretraining validation (delta E) every N steps; default: once, at the end")
     p.add_argument("--parallel", type=int, default=2)
     p.add_argument("--threads", default="2")
     p.add_argument("--arms", nargs="+", default=[name for name, _ in ARMS],
@@ -76,7 +87,7 @@ def main():
     os.makedirs(work, exist_ok=True)
     ds, tasks = task_classes(l7)
     tasks = {t: tasks[t] for t in a.tasks}
-    write_inputs(work, l7, tasks, ds, a.threads, tinct, a.pretrain_steps)
+    write_inputs(work, l7, tasks, ds, a.threads, tinct, a.pretrain_steps, a.validation_every)
     for task in tasks:
         write_study(work, task, a.seeds, a.parallel, a.arms)
         result = subprocess.run([tinct, "--threads", a.threads, "study", f"{task}_study.yaml"], cwd=work)

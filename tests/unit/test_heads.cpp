@@ -120,6 +120,49 @@ TEST_CASE("the hypercolumn at the label pixel depends only on its receptive fiel
   }
 }
 
+TEST_CASE("the colour readout with input bands depends only on the receptive field of the label pixel", "[heads]") {
+  // The colour pool reads the decoder's output, whose receptive field is inside the
+  // hypercolumn's (compact: half-width 107, see above); its 3 x 3 mean adds one pixel, and the
+  // input bands' 3 x 3 mean sees one pixel around the label pixel: 108 -> 120 used.
+  const std::int64_t chip = 256, radius = 120;
+  torch::manual_seed(5);
+  ClassifierSpec spec = spec_of("compact", HeadPool::colour, HeadKind::linear_probe);
+  spec.head.input_bands = true;
+  ClassifierModel colour(spec);
+  colour->eval();
+  torch::NoGradGuard no_grad;
+  const torch::Tensor chips = torch::randn({2, 3, chip, chip});
+  const torch::Tensor outside = torch::ones({chip, chip}, torch::kBool);
+  const std::int64_t low = chip / 2 - radius, high = chip / 2 + radius;
+  outside.narrow(0, low, high - low + 1).narrow(1, low, high - low + 1).fill_(false);
+  const torch::Tensor changed = torch::where(outside, torch::randn({2, 3, chip, chip}) * 3, chips);
+  const torch::Tensor before = colour->features(chips);
+  // shapes: 3 Lab + 3 bands per chip
+  CHECK(before.sizes().vec() == std::vector<std::int64_t>{2, 6});
+  CHECK(tinct::readout_features(spec) == 6);
+  CHECK(max_abs_difference(before, colour->features(changed)) < 1e-5f);
+  // the last three columns are the bands' 3 x 3 mean at (H/2, W/2), by slicing rows and
+  // columns H/2 - 1 .. H/2 + 1 here
+  const torch::Tensor window = chips.narrow(2, chip / 2 - 1, 3).narrow(3, chip / 2 - 1, 3).mean({2, 3});
+  CHECK(max_abs_difference(before.narrow(1, 3, 3), window) < 1e-5f);
+  // a change of one band next to the label pixel moves that band's column by a ninth of it,
+  // and the predicted colour too
+  torch::Tensor near = chips.clone();
+  near[0][1][chip / 2 + 1][chip / 2 - 1] += 9.0;
+  const torch::Tensor moved = colour->features(near) - before;
+  CHECK(moved[0][4].item<float>() == Approx(1.0).margin(1e-4));
+  CHECK(moved[0][3].abs().item<float>() < 1e-5f);
+  CHECK(moved.narrow(1, 0, 3)[0].abs().max().item<float>() > 1e-6f);
+  CHECK(moved[1].abs().max().item<float>() < 1e-5f);
+  // with decoder channels too: 3 Lab + 5 channels + 3 bands
+  spec.head.colour_channels = 5;
+  ClassifierModel wider(spec);
+  wider->eval();
+  CHECK(wider->features(chips).size(1) == 11);
+  CHECK(tinct::readout_features(spec) == 11);
+  CHECK(wider->forward(chips).sizes().vec() == std::vector<std::int64_t>{2, 4});
+}
+
 TEST_CASE("every encoder, pool and kind gives features and logits of the right shape", "[heads]") {
   const std::vector<std::string> encoders{"compact", "resnet18", "resnet34"};
   const std::vector<HeadPool> pools{HeadPool::global, HeadPool::centre, HeadPool::hypercolumn, HeadPool::colour};
@@ -187,10 +230,14 @@ TEST_CASE("the head section reads pools and kinds and refuses keys that do not a
   const tinct::HeadSpec probe = head_from("head: {pool: colour, kind: linear_probe, l2: 0.5, colour_channels: 4}\n");
   CHECK(probe.l2 == 0.5);
   CHECK(probe.colour_channels == 4);
+  CHECK_FALSE(probe.input_bands);
+  CHECK(head_from("head: {pool: colour, kind: knn, input_bands: true}\n").input_bands);
   CHECK(head_from("head: {kind: linear_probe, l2: auto}\n").l2 == 0.0);
   CHECK_THAT(usage_error_of([] { head_from("head: {pool: middle}\n"); }), Contains("pool"));
   CHECK_THAT(usage_error_of([] { head_from("head: {k: 3}\n"); }), Contains("applies only with kind: knn"));
   CHECK_THAT(usage_error_of([] { head_from("head: {kind: knn, dropout: 0.1}\n"); }),
              Contains("applies only with kind: trained"));
   CHECK_THAT(usage_error_of([] { head_from("head: {colour_channels: 2}\n"); }), Contains("pool: colour"));
+  CHECK_THAT(usage_error_of([] { head_from("head: {pool: hypercolumn, input_bands: true}\n"); }),
+             Contains("pool: colour"));
 }

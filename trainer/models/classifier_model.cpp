@@ -26,13 +26,17 @@ void check_readout(const ClassifierSpec& spec, const ColourDecoderImpl* decoder)
   }
 }
 
+std::int64_t colour_readout_features(const ClassifierSpec& spec) {
+  return kLabChannels + spec.head.colour_channels + (spec.head.input_bands ? spec.model.encoder.bands : 0);
+}
+
 }  // namespace
 
 std::int64_t readout_features(const ClassifierSpec& spec) {
   const auto encoder = make_encoder(spec.model.encoder);
   if (!pool_uses_decoder(spec.head.pool)) return encoder->feature_channels();
   const ColourDecoderImpl decoder(encoder->stage_channels(), encoder->stage_strides(), spec.model.decoder);
-  if (spec.head.pool == HeadPool::colour) return kLabChannels + spec.head.colour_channels;
+  if (spec.head.pool == HeadPool::colour) return colour_readout_features(spec);
   return sum(encoder->stage_channels()) + sum(decoder.step_channels()) + decoder.output_channels();
 }
 
@@ -44,7 +48,7 @@ ClassifierModelImpl::ClassifierModelImpl(const ClassifierSpec& spec) : spec_(spe
                                                        spec_.model.decoder));
     check_readout(spec_, decoder.get());
     features = spec_.head.pool == HeadPool::colour
-                   ? kLabChannels + spec_.head.colour_channels
+                   ? colour_readout_features(spec_)
                    : sum(encoder->stage_channels()) + sum(decoder->step_channels()) + decoder->output_channels();
   }
   switch (spec_.head.kind) {
@@ -80,12 +84,15 @@ torch::Tensor ClassifierModelImpl::features(torch::Tensor x) {
       return torch::cat(columns, 1);
     }
     case HeadPool::colour: {
-      // (B, 3) predicted Lab [+ (B, colour_channels) of the last step], 3 x 3 mean at the label pixel
+      // (B, 3) predicted Lab [+ (B, colour_channels) of the last step] [+ (B, bands) input],
+      // each the 3 x 3 mean at the label pixel
       const std::vector<torch::Tensor> steps = decoder->forward_steps(stages);
-      torch::Tensor colour = mean_3x3_at_label_pixel(steps.back());
-      if (spec_.head.colour_channels == 0) return colour;
-      const torch::Tensor last_step = steps[steps.size() - 2].narrow(1, 0, spec_.head.colour_channels);
-      return torch::cat({colour, mean_3x3_at_label_pixel(last_step)}, 1);
+      std::vector<torch::Tensor> columns{mean_3x3_at_label_pixel(steps.back())};
+      if (spec_.head.colour_channels > 0) {
+        columns.push_back(mean_3x3_at_label_pixel(steps[steps.size() - 2].narrow(1, 0, spec_.head.colour_channels)));
+      }
+      if (spec_.head.input_bands) columns.push_back(mean_3x3_at_label_pixel(x));
+      return torch::cat(columns, 1);
     }
   }
   fail_runtime("model: unknown head pool");

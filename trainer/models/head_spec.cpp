@@ -73,8 +73,11 @@ HeadSpec read_head_spec(const ConfigNode& node) {
   }
   if (spec.pool == HeadPool::colour) {
     spec.colour_channels = static_cast<int>(node.integer("colour_channels", 0, 0, kMaxColourChannels));
-  } else if (node.has("colour_channels")) {
-    node.fail("colour_channels", "applies only with pool: colour (pool is " + to_string(spec.pool) + ")");
+    spec.input_bands = node.flag("input_bands", false);
+  } else {
+    for (const char* key : {"colour_channels", "input_bands"}) {
+      if (node.has(key)) node.fail(key, std::string("applies only with pool: colour (pool is ") + to_string(spec.pool) + ")");
+    }
   }
   if (is_probe(spec.kind)) {
     for (const char* key : {"dropout", "hidden"}) {

@@ -5,7 +5,9 @@
 //          hypercolumn  every encoder stage, every colour-decoder step and the decoder's
 //                       output, each upsampled (bilinear) to the label pixel
 //          colour       the decoder's predicted colour (scaled Lab), plus the first
-//                       colour_channels channels of its last step, 3 x 3 mean at the label pixel
+//                       colour_channels channels of its last step, 3 x 3 mean at the label pixel;
+//                       with input_bands also the chip's own input bands there (3 x 3 mean), so
+//                       the readout keeps what a pixel classifier on the bands sees
 //   kind   trained      dropout (+ hidden layer) + linear, trained with the network
 //          linear_probe frozen features, multinomial logistic regression (L2 from inner
 //                       cross-validation on the budgeted labels unless l2 is given)
@@ -29,6 +31,7 @@ struct HeadSpec {
   int k = 5;                // knn
   double l2 = 0;            // linear_probe: 0 = chosen by inner cross-validation
   int colour_channels = 0;  // colour: decoder channels read out beside the colour
+  bool input_bands = false;  // colour: the label pixel's input bands read out beside the colour
 };
 
 const std::vector<std::string>& head_pool_names();  // global, centre, hypercolumn, colour
@@ -44,7 +47,7 @@ bool pool_uses_decoder(HeadPool pool);
 // The features are frozen and the head fitted in closed form (no training epochs).
 bool is_probe(HeadKind kind);
 
-// Reads pool, kind, k, l2 and colour_channels from the `head:` section, refusing keys that do
+// Reads pool, kind, k, l2, colour_channels and input_bands from the `head:` section, refusing keys that do
 // not apply to the kind or pool. Does not call finish(): the caller reads dropout and hidden.
 HeadSpec read_head_spec(const ConfigNode& node);
 

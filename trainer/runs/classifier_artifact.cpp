@@ -19,6 +19,7 @@ void save_classifier(const fs::path& file, const ClassifierModel& model, const C
   archive.integer("head_k", artifact.spec.head.k);
   archive.number("head_l2", artifact.spec.head.l2);
   archive.integer("head_colour_channels", artifact.spec.head.colour_channels);
+  archive.integer("head_input_bands", artifact.spec.head.input_bands ? 1 : 0);
   archive.save(file);
 }
 
@@ -37,6 +38,8 @@ ClassifierModel load_classifier(const fs::path& file, ClassifierArtifact& artifa
     head.k = static_cast<int>(archive.integer("head_k"));
     head.l2 = archive.number("head_l2");
     head.colour_channels = static_cast<int>(archive.integer("head_colour_channels"));
+    // model.pt files before input_bands read the colour alone
+    head.input_bands = archive.has("head_input_bands") && archive.integer("head_input_bands") != 0;
   }
   ClassifierModel model(artifact.spec);
   archive.module("weights", *model);
