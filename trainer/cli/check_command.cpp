@@ -31,7 +31,10 @@ const ConfigKind kConfigKinds[] = {
     {"pair", [](const ConfigNode& root) { read_pair_config(root); }},
     {"label", [](const ConfigNode& root) { read_label_config(root); }},
     {"pretrain", [](const ConfigNode& root) { read_pretrain_config(root); }},
-    {"finetune", [](const ConfigNode& root) { read_finetune_config(root); }},
+    {"finetune", [](const ConfigNode& root) {
+       const FinetuneConfig config = read_finetune_config(root);
+       log::info(head_choice_line(config.head, config.head_choice));
+     }},
     {"study", [](const ConfigNode& root) { plan_study(read_study_config(root)); }},
     {"map", [](const ConfigNode& root) { read_map_config(root); }},
 };

@@ -9,14 +9,16 @@ namespace fs = std::filesystem;
 namespace tinct {
 namespace {
 
-FinetuneInit read_init(const ConfigNode& node, int bands) {
+// `head_by_default`: the head is left to the default, which the missing run would decide.
+FinetuneInit read_init(const ConfigNode& node, int bands, bool head_by_default) {
   FinetuneInit init;
   init.pretrained = node.choice("from", {"pretrain", "scratch"}, "pretrain") == "pretrain";
   if (init.pretrained) {
     init.pretrain_run = node.path("run", true);
     node.allow("model");
     if (!fs::exists(init.pretrain_run / "encoder.pt")) {
-      node.fail("run", init.pretrain_run.string() + " holds no encoder.pt; is the pretrain run finished?");
+      node.fail("run", init.pretrain_run.string() + " holds no encoder.pt; is the pretrain run finished?" +
+                           (head_by_default ? " (" + head_default_rule() + ")" : std::string()));
     }
   } else if (node.has("run")) {
     init.pretrain_run = node.path("run", true);  // architecture and statistics only
@@ -113,12 +115,13 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   config.stores = read_store_list(root, StoreKind::labels, bands);
   config.output = root.path("output", false);
   const ConfigNode init = root.section("init");
-  config.init = read_init(init, bands);
+  const ConfigNode head = root.section("head");
+  config.init = read_init(init, bands, !head.has("pool") && !head.has("kind"));
   require_no_conflicts(config.init.pretrain_run.empty()
                            ? store_conflicts(root, config.stores, config.init.model.encoder)
                            : store_conflicts_with_run(root, config.stores, config.init.pretrain_run, init, "run"));
-  const ConfigNode head = root.section("head");
-  config.head = read_head_spec(head);
+  config.head_choice = choose_head_default(head, config.init.pretrained, config.init.pretrain_run);
+  config.head = read_head_spec(head, config.head_choice.defaults);
   if (!is_probe(config.head.kind)) {
     config.dropout = head.number("dropout", 0.2, 0.0, 0.95);
     config.hidden = static_cast<int>(head.integer("hidden", 0, 0, 8192));

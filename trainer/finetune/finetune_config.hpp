@@ -9,6 +9,7 @@
 #include <string>
 #include <vector>
 
+#include "finetune/default_head.hpp"
 #include "finetune/label_budget.hpp"
 #include "finetune/label_split.hpp"
 #include "distributed/distributed_settings.hpp"
@@ -34,6 +35,7 @@ struct FinetuneConfig {
   double dropout = 0.2;
   int hidden = 0;
   HeadSpec head;  // head: pool, kind, k, l2, colour_channels (models/head_spec.hpp)
+  HeadChoice head_choice;  // whether `head` is the built-in default, and why (finetune/default_head.hpp)
   FreezePolicy freeze = FreezePolicy::full;
   int unfreeze_epoch = 5;
   double encoder_lr_scale = 1.0;

@@ -343,7 +343,9 @@ FinetuneResult test_best(RunLifecycle& run, const FinetuneData& data, const Epoc
   result.best_validation_macro_f1 = state.best_f1;
   result.test = predict_chips(chosen, data.chips, data.split.test, c.train.batch);
   result.metrics = write_assessment(run.folder().path(), result.test, data.chips, data.artifact.classes);
-  log::info("finetune: best epoch " + std::to_string(state.best_epoch) + "; test macro F1 " +
+  const std::string which = state.best_epoch > 0 ? "best epoch " + std::to_string(state.best_epoch)
+                                                  : std::string("probe fitted on frozen features");
+  log::info("finetune: " + which + "; test macro F1 " +
             format("%.3f", result.metrics.macro_f1) + " on " + std::to_string(data.split.test.size()) +
             " chips of fold " + std::to_string(c.split.fold));
   return result;
@@ -385,6 +387,8 @@ FinetuneResult run_finetune(const FinetuneConfig& c, const FinetuneOptions& opti
                     parallel.single() ? nullptr : &parallel.group()});
   FinetuneResult result;
   run.execute([&] {
+    log::info(head_choice_line(c.head, c.head_choice));
+    if (run.is_writer()) run.folder().record("head", head_choice_record(c.head, c.head_choice));
     const FinetuneData data = prepare_split(c, run);
     Finetuning model = build_model(c, data);
     if (is_probe(c.head.kind)) {

@@ -53,10 +53,10 @@ bool pool_uses_decoder(HeadPool pool) { return pool == HeadPool::hypercolumn || 
 
 bool is_probe(HeadKind kind) { return kind != HeadKind::trained; }
 
-HeadSpec read_head_spec(const ConfigNode& node) {
+HeadSpec read_head_spec(const ConfigNode& node, const HeadSpec& defaults) {
   HeadSpec spec;
-  spec.pool = head_pool_from_name(node.choice("pool", head_pool_names(), "global"), node.where("pool"));
-  spec.kind = head_kind_from_name(node.choice("kind", head_kind_names(), "trained"), node.where("kind"));
+  spec.pool = head_pool_from_name(node.choice("pool", head_pool_names(), to_string(defaults.pool)), node.where("pool"));
+  spec.kind = head_kind_from_name(node.choice("kind", head_kind_names(), to_string(defaults.kind)), node.where("kind"));
   if (spec.kind == HeadKind::knn) {
     spec.k = static_cast<int>(node.integer("k", 5, 1, kMaxNeighbours));
   } else if (node.has("k")) {
@@ -73,7 +73,7 @@ HeadSpec read_head_spec(const ConfigNode& node) {
   }
   if (spec.pool == HeadPool::colour) {
     spec.colour_channels = static_cast<int>(node.integer("colour_channels", 0, 0, kMaxColourChannels));
-    spec.input_bands = node.flag("input_bands", false);
+    spec.input_bands = node.flag("input_bands", defaults.input_bands);
   } else {
     for (const char* key : {"colour_channels", "input_bands"}) {
       if (node.has(key)) node.fail(key, std::string("applies only with pool: colour (pool is ") + to_string(spec.pool) + ")");
@@ -85,6 +85,16 @@ HeadSpec read_head_spec(const ConfigNode& node) {
     }
   }
   return spec;
+}
+
+std::string head_summary(const HeadSpec& spec) {
+  std::string text = "{pool: " + to_string(spec.pool) + ", kind: " + to_string(spec.kind);
+  if (spec.kind == HeadKind::knn) text += ", k: " + std::to_string(spec.k);
+  if (spec.pool == HeadPool::colour) {
+    if (spec.colour_channels > 0) text += ", colour_channels: " + std::to_string(spec.colour_channels);
+    text += std::string(", input_bands: ") + (spec.input_bands ? "true" : "false");
+  }
+  return text + "}";
 }
 
 }  // namespace tinct

@@ -1,6 +1,6 @@
 // What a classifier reads out of its feature extractor and how the class readout is made,
 // as plain data (no LibTorch): the `head:` section of a finetune config and model.pt.
-//   pool   global       the deepest encoder stage averaged over the chip (the default)
+//   pool   global       the deepest encoder stage averaged over the chip
 //          centre       the deepest stage's cells around the chip centre
 //          hypercolumn  every encoder stage, every colour-decoder step and the decoder's
 //                       output, each upsampled (bilinear) to the label pixel
@@ -12,7 +12,8 @@
 //          linear_probe frozen features, multinomial logistic regression (L2 from inner
 //                       cross-validation on the budgeted labels unless l2 is given)
 //          knn          frozen features, k nearest training chips (Euclidean, standardised)
-// The label pixel is (size/2, size/2), where `tinct label` puts the label.
+// The label pixel is (size/2, size/2), where `tinct label` puts the label. The default when a
+// config names no pool or kind depends on the run's init: finetune/default_head.hpp.
 #pragma once
 
 #include <string>
@@ -48,7 +49,11 @@ bool pool_uses_decoder(HeadPool pool);
 bool is_probe(HeadKind kind);
 
 // Reads pool, kind, k, l2, colour_channels and input_bands from the `head:` section, refusing keys that do
-// not apply to the kind or pool. Does not call finish(): the caller reads dropout and hidden.
-HeadSpec read_head_spec(const ConfigNode& node);
+// not apply to the kind or pool. Keys left out take pool, kind and input_bands from `defaults`
+// (finetune/default_head.hpp chooses them). Does not call finish(): the caller reads dropout and hidden.
+HeadSpec read_head_spec(const ConfigNode& node, const HeadSpec& defaults = HeadSpec{});
+
+// Flow YAML of what sets the head apart: "{pool: colour, kind: linear_probe, input_bands: true}".
+std::string head_summary(const HeadSpec& spec);
 
 }  // namespace tinct

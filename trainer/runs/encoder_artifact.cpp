@@ -21,6 +21,7 @@ EncoderArtifact read_encoder_artifact(const fs::path& file) {
   EncoderArtifact artifact;
   artifact.model = archive.model_spec();
   archive.inputs(artifact.normalisation, artifact.chip_size);
+  artifact.has_decoder = archive.has("decoder");
   return artifact;
 }
 

@@ -20,6 +20,7 @@ struct EncoderArtifact {
   ModelSpec model;  // the encoder part is used; the decoder's is kept for reference
   BandNormalisation normalisation;
   int chip_size = 0;
+  bool has_decoder = false;  // the colour decoder's weights are kept (runs since decoders were kept)
 };
 
 // `decoder` (the colour decoder, optional) is kept too, for readouts that use it.

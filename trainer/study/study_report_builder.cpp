@@ -25,18 +25,25 @@ const char* freeze_name(FreezePolicy policy) {
                                                                  : "full fine-tune";
 }
 
+// "frozen encoder, head {pool: colour, kind: linear_probe, input_bands: true} (the default)"
+std::string training_of(const FinetuneConfig& c) {
+  const bool probe = is_probe(c.head.kind);
+  return std::string(probe ? "frozen encoder" : freeze_name(c.freeze)) + ", head " + head_summary(c.head) +
+         (c.head_choice.by_default ? " (the default)" : "");
+}
+
 StudyArm deep_arm(const StudyArmConfig& arm, const FinetuneConfig& c) {
   StudyArm result;
   result.name = arm.name;
   const std::string encoder = c.init.pretrain_run.empty() ? c.init.model.encoder.name + " encoder" : "the encoder of " +
                                                                                        c.init.pretrain_run.filename().string();
   if (c.init.pretrained) {
-    result.kind = c.freeze == FreezePolicy::frozen ? ArmKind::probe : ArmKind::pretrained;
-    result.description = "pretrained: " + encoder + ", " + freeze_name(c.freeze);
+    const bool frozen = c.freeze == FreezePolicy::frozen || is_probe(c.head.kind);
+    result.kind = frozen ? ArmKind::probe : ArmKind::pretrained;
+    result.description = "pretrained: " + encoder + ", " + training_of(c);
   } else {
     result.kind = ArmKind::scratch;
-    result.description = "from scratch (random initial weights, architecture of " + encoder + "), " +
-                         freeze_name(c.freeze);
+    result.description = "from scratch (random initial weights, architecture of " + encoder + "), " + training_of(c);
   }
   return result;
 }
