@@ -7,7 +7,9 @@ the run's test metrics (metrics.json) and predictions, and so does assess on the
 store (it scores the test chips only; --all scores all, with a warning); predictions.csv's
 lon, lat equal GDAL osr's transform of x, y; the metrics in metrics.json equal scikit-learn's
 (Debian python3-sklearn 1.2) on predictions.csv; the label store holds label's log.txt with its per-class
-counts; an encoder whose bands differ from the store's is refused."""
+counts; an encoder whose bands differ from the store's is refused. Those runs name their
+head (the trained global head); a pretrained run that names none gets the default, the
+colour + bands linear probe, says so in run.yaml and log.txt, and beats chance too."""
 import csv
 import hashlib
 import json
@@ -69,13 +71,13 @@ def subset_store(source, target, ids):
     return len(keep)
 
 
-def finetune_config(work, name, init, freeze="full", stores="sites.labels"):
+def finetune_config(work, name, init, freeze="full", stores="sites.labels", head="head: {pool: global, kind: trained}\n"):
     with open(os.path.join(work, f"{name}.yaml"), "w") as f:
         f.write(f"""config: finetune
 stores: [{stores}]
 output: runs/{name}
 init: {init}
-freeze: {{policy: {freeze}}}
+{head}freeze: {{policy: {freeze}}}
 split: {{method: blocks, block_size: 640, folds: 4, fold: 1, buffer: 0}}
 train: {{epochs: 25, batch: 16, lr: 0.003, seed: 3, patience: 8}}
 """)
@@ -174,6 +176,27 @@ chips: {size: 16, min_valid: 0.9, block_size: 640}
                      f"{name}: kappa equals scikit-learn's")
         for file in ("confusion.csv", "metrics.csv", "model.pt", "config.resolved.yaml", "run.yaml"):
             checks.check(os.path.exists(os.path.join(folder, file)), f"{name}: run holds {file}")
+
+    # No head: section: the default for a pretrain run whose decoder predicts Lab.
+    run = tinct(work, "finetune", finetune_config(work, "default", "{from: pretrain, run: runs/pre}", head=""))
+    checks.check(run.returncode == 0, f"finetune with the default head: exit {run.returncode}")
+    if run.returncode == 0:
+        folder = os.path.join(work, "runs", "default")
+        head = yaml.safe_load(open(os.path.join(folder, "run.yaml")))["head"]
+        checks.check(head["pool"] == "colour" and head["kind"] == "linear_probe" and head["input_bands"] is True and
+                     head["chosen_by"] == "default" and "predicts Lab" in head["reason"],
+                     f"run.yaml records the default head and why: {head}")
+        checks.check("head: default {pool: colour, kind: linear_probe, input_bands: true} because" in run.stderr,
+                     "the run says which default head it took, and why")
+        resolved = yaml.safe_load(open(os.path.join(folder, "config.resolved.yaml")))["head"]
+        checks.check(resolved.get("pool") == "colour" and resolved.get("kind") == "linear_probe",
+                     f"config.resolved.yaml names the head: {resolved}")
+        metrics = json.load(open(os.path.join(folder, "metrics.json")))
+        print(f"default head: test macro F1 {metrics['macro_f1']:.3f}")
+        checks.check(metrics["macro_f1"] > 0.75, f"default head: macro F1 {metrics['macro_f1']:.3f} not clearly above chance")
+    check = tinct(work, "check", "default.yaml")
+    checks.check(check.returncode == 0 and "input_bands: true" in check.stdout and
+                 "head: default {pool: colour" in check.stderr, "tinct check prints the resolved default head")
 
     def without_init(name):
         resolved = yaml.safe_load(open(os.path.join(work, "runs", name, "config.resolved.yaml")))

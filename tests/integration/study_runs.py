@@ -9,7 +9,9 @@ statsmodels 0.13 (multipletests holm); report.html parses and every <svg> parses
 a second run skips every run and writes the same summary; a study killed mid-way and run
 again runs only the missing runs and writes the same summary as the uninterrupted one; a
 failing run is reported while the others are summarised; a random split and other bad
-configs are refused before anything runs."""
+configs are refused before anything runs. Neither arm names a head, so each resolves its own
+default: the pretrained arm (a Lab pretrain run) the colour + bands linear probe, the scratch
+arm of the same base config the trained global head; they are paired all the same."""
 import csv
 import glob
 import json
@@ -23,6 +25,7 @@ import xml.etree.ElementTree as ElementTree
 from html.parser import HTMLParser
 
 import numpy as np
+import yaml
 from scipy import optimize, stats
 from statsmodels.stats.multitest import multipletests
 
@@ -185,6 +188,24 @@ def check_statistics(study, summary, f1):
                  f"ensemble diversity at both budgets: {diversity}")
 
 
+def check_default_heads(study):
+    """Each arm's runs record their own resolved default head in run.yaml and its reason in
+    log.txt; the report describes both."""
+    for arm, pool, kind in (("pretrained", "colour", "linear_probe"), ("scratch", "global", "trained")):
+        run_yamls = glob.glob(os.path.join(study, "runs", arm, "*", "*", "*", "run.yaml"))
+        checks.check(len(run_yamls) == 8, f"{arm}: 8 runs")
+        for run_yaml in run_yamls:
+            head = yaml.safe_load(open(run_yaml))["head"]
+            checks.check(head["pool"] == pool and head["kind"] == kind and head["chosen_by"] == "default" and
+                         head.get("input_bands", False) == (pool == "colour"),
+                         f"{run_yaml}: default head {pool}/{kind}: {head}")
+            log = open(os.path.join(os.path.dirname(run_yaml), "log.txt")).read()
+            checks.check(f"head: default {{pool: {pool}, kind: {kind}" in log, f"{arm}: log.txt names the default head")
+    html = open(os.path.join(study, "report.html"), encoding="utf-8").read()
+    checks.check("{pool: colour, kind: linear_probe, input_bands: true} (the default)" in html and
+                 "{pool: global, kind: trained} (the default)" in html, "report.html describes each arm's head")
+
+
 class Svgs(HTMLParser):
     def __init__(self):
         super().__init__()
@@ -232,6 +253,7 @@ with tempfile.TemporaryDirectory() as work:
     checks.check(fine_tunes_ran(run.stderr) == 16, f"16 fine-tunes ran: {fine_tunes_ran(run.stderr)}")
     summary, f1 = check_summary(one)
     check_statistics(one, summary, f1)
+    check_default_heads(one)
     check_report(one)
 
     # Again: everything is finished with the same config, so nothing runs.
