@@ -194,6 +194,36 @@ chips: {size: 16, min_valid: 0.9, block_size: 640}
         metrics = json.load(open(os.path.join(folder, "metrics.json")))
         print(f"default head: test macro F1 {metrics['macro_f1']:.3f}")
         checks.check(metrics["macro_f1"] > 0.75, f"default head: macro F1 {metrics['macro_f1']:.3f} not clearly above chance")
+    # The default head's run maps (exact: each window read out at its centre pixel, as a chip
+    # at its label): the uncalibrated map (aoa: false) at every label chip's place through
+    # --points gives tinct assess's probabilities; dense mode is refused, naming the head.
+    assessed = tinct(work, "assess", "runs/default", "--on", "sites.labels", "--all", "--out", "assess-default")
+    checks.check(assessed.returncode == 0, f"assess of the default head's run: exit {assessed.returncode}")
+    with open(os.path.join(work, "map-default.yaml"), "w") as f:
+        f.write("config: map\nrun: runs/default\noutput: maps/default\naoa: false\nprobabilities: float32\n"
+                "sensor: test-five.yaml\nscenes: [{id: s, path: scene.tif, bands: [blue, green, red, nir, swir], "
+                "date: 2026-05-05}]\n")
+    if assessed.returncode == 0:
+        rows = list(csv.DictReader(open(os.path.join(work, "assess-default", "predictions.csv"))))
+        with open(os.path.join(work, "chip-points.csv"), "w") as f:
+            f.write("id,x,y\n" + "".join(f"c{i},{r['x']},{r['y']}\n" for i, r in enumerate(rows)))
+        mapped = tinct(work, "map", "map-default.yaml", "--points", "chip-points.csv")
+        checks.check(mapped.returncode == 0, f"map --points of the default head's run: exit {mapped.returncode}")
+        if mapped.returncode == 0:
+            points = {r["id"]: r for r in csv.DictReader(open(os.path.join(work, "maps", "default", "points.csv")))}
+            worst = max(abs(float(points[f"c{i}"][f"p_{name}"]) - float(r[f"p_{name}"]))
+                        for i, r in enumerate(rows) for name in ("dry", "wet"))
+            print(f"default head: --points vs tinct assess on {len(rows)} label chips: max |dp| {worst:.2e}")
+            checks.check(len(rows) >= 20 and worst < 1e-4, f"the probe run's map differs from assess by {worst:.2e}")
+    with open(os.path.join(work, "map-default-aoa.yaml"), "w") as f:  # with the area of applicability
+        f.write(open(os.path.join(work, "map-default.yaml")).read().replace("aoa: false\n", "")
+                .replace("maps/default", "maps/default-scene"))
+    whole = tinct(work, "map", "map-default-aoa.yaml")
+    checks.check(whole.returncode == 0 and os.path.exists(os.path.join(work, "maps", "default-scene", "s", "aoa.tif")),
+                 f"the default head's run maps a whole scene with its area of applicability: exit {whole.returncode}")
+    dense = tinct(work, "map", "map-default.yaml", "--mode", "dense", "--stride", "16", "--out", "maps/dense")
+    checks.check(dense.returncode == 2 and "head.pool colour" in dense.stderr and "mode: exact" in dense.stderr,
+                 f"dense refused for a centre readout: exit {dense.returncode}, {dense.stderr[-300:]}")
     check = tinct(work, "check", "default.yaml")
     checks.check(check.returncode == 0 and "input_bands: true" in check.stdout and
                  "head: default {pool: colour" in check.stderr, "tinct check prints the resolved default head")

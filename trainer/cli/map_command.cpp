@@ -54,6 +54,9 @@ static void run_map_command(const MapOptions& options, const GlobalOptions& glob
                std::to_string(settings.inputs.feature_stride) + " px); the stride is " +
                std::to_string(settings.stride) + ": use --mode exact or another --stride");
   }
+  if (settings.mode == MapMode::dense && !dense_refusal(settings.inputs).empty()) {
+    fail_usage("--mode dense: " + dense_refusal(settings.inputs));
+  }
   MapJobOptions job;
   job.replace = options.force;
   job.threads = global.threads;

@@ -119,8 +119,23 @@ void choose_l2_by_inner_cv(const torch::Tensor& x, const torch::Tensor& y, const
   log::info("finetune: inner cross-validation log loss by l2" + losses);
 }
 
+// L-BFGS on a few hundred rows is thousands of tiny operations: split over several OpenMP
+// threads, each waits on the others far longer than it computes (a probe run took 13 CPU
+// seconds on one thread, 145 on two, on a loaded machine), so the fit runs on one.
+class OneThreadScope {
+ public:
+  OneThreadScope() : before_(at::get_num_threads()) { at::set_num_threads(1); }
+  ~OneThreadScope() { at::set_num_threads(before_); }
+  OneThreadScope(const OneThreadScope&) = delete;
+  OneThreadScope& operator=(const OneThreadScope&) = delete;
+
+ private:
+  int before_;
+};
+
 void fit_linear_probe(ClassifierModel& model, const torch::Tensor& features, const torch::Tensor& y,
                       const torch::Tensor& row_weight, std::uint64_t seed, ProbeFit& fit) {
+  const OneThreadScope one_thread;
   const std::int64_t classes = model->spec().classes;
   const torch::Tensor x = features.to(torch::kFloat64);
   fit.l2 = model->spec().head.l2;

@@ -62,7 +62,8 @@ std::map<std::string, std::string> provenance(const MapSettings& s, const std::v
   m["TINCT_CALIBRATION"] = s.runs.size() > 1 ? "each member by its own temperature (TINCT_MEMBER_*)"
                                               : calibration_text(evidence);
   if (evidence.applicability) {
-    m["TINCT_AOA"] = "dissimilarity index over unweighted standardised pooled encoder features; threshold " +
+    m["TINCT_AOA"] = "dissimilarity index over the unweighted standardised features the head reads (head.pool " +
+                     s.inputs.head_pool + "); threshold " +
                      metric_text(evidence.applicability->threshold) +
                      (s.runs.size() > 1 ? "; of the first member's encoder and training chips" : "");
   }

@@ -18,6 +18,7 @@ void require_alike(const WindowModel& first, const WindowModel& other, const fs:
   if (other.classes() != first.classes()) differs = "classes";
   else if (other.chip_size() != first.chip_size()) differs = "chip size";
   else if (other.feature_stride() != first.feature_stride()) differs = "encoder feature stride";
+  else if (other.feature_count() != first.feature_count()) differs = "head's read-out features";
   else if (other.normalisation().bands != first.normalisation().bands) differs = "input bands";
   else if (other.normalisation().mean != first.normalisation().mean ||
            other.normalisation().std != first.normalisation().std) {

@@ -83,6 +83,7 @@ void read_options(const ConfigNode& root, MapSettings& s) {
   s.aoa = root.flag("aoa", true);
   s.aoa_step = static_cast<int>(root.integer("aoa_step", 8, 1, 32));
   if (32 % s.aoa_step != 0) root.fail("aoa_step", "must divide 32: 1, 2, 4, 8, 16 or 32");
+  if (s.mode == MapMode::dense && !dense_refusal(s.inputs).empty()) root.fail("mode", dense_refusal(s.inputs));
   s.batch = static_cast<int>(root.integer("batch", 32, 1, 4096));
 }
 
@@ -151,6 +152,13 @@ std::string MapSettings::model_name() const {
   return source.substr(arm + 2);  // "arm A, budget B, fold F: N seeds"
 }
 
+std::string dense_refusal(const RunInputs& inputs) {
+  if (inputs.head_pool == "global") return "";
+  return "dense averages the encoder's feature map over each window, but this run's head reads the window out "
+         "with head.pool " + inputs.head_pool + " (at its centre pixel): map it with mode: exact, or map a run "
+         "fine-tuned with head: {pool: global}";
+}
+
 RunInputs read_run_inputs(const fs::path& run) {
   RunInputs inputs;
   ArchiveReader archive(run / "model.pt", ArchiveKind::classifier);
@@ -159,6 +167,7 @@ RunInputs read_run_inputs(const fs::path& run) {
   archive.inputs(normalisation, inputs.chip_size);
   inputs.bands = normalisation.bands;
   inputs.feature_stride = chip_size_multiple(spec.encoder);
+  if (archive.has("head_pool")) inputs.head_pool = archive.text("head_pool");
   inputs.stores = run_stores(run);
   take_store_encoding(inputs.stores.front(), inputs);
   return inputs;

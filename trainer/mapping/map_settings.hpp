@@ -30,6 +30,7 @@ struct RunInputs {
   std::vector<std::string> bands;
   int chip_size = 0;
   int feature_stride = 16;             // the encoder's deepest stride
+  std::string head_pool = "global";    // how the run's head reads a chip (models/head_spec.hpp)
   std::vector<double> scale, offset;   // per band: reflectance = (stored + offset) * scale
   bool uint16_storage = true;          // the store rounded values to integers
   double pixel_size = 0;               // of the training store
@@ -69,6 +70,10 @@ struct MapSettings {
 
 // Reads the run's model description and store manifests (the run's config.resolved.yaml).
 RunInputs read_run_inputs(const std::filesystem::path& run);
+
+// Why mode dense cannot map a run with these inputs ("" when it can): dense averages the
+// encoder's feature map per window, which only a head that pools the whole window reads.
+std::string dense_refusal(const RunInputs& inputs);
 
 // `root` is the config's top level; calls finish() on every section it reads.
 MapSettings read_map_config(const ConfigNode& root);

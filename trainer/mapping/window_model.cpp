@@ -6,6 +6,7 @@
 
 #include "models/classifier_model.hpp"
 #include "runs/classifier_artifact.hpp"
+#include "util/error.hpp"
 
 namespace tinct {
 
@@ -15,11 +16,11 @@ struct WindowModel::Impl {
   int features = 0;
   int feature_stride = 16;
 
-  // pooled (N, F) -> logits into `logits`, features into `features`.
-  void finish(const torch::Tensor& pooled, float* logits, float* out_features) {
-    const torch::Tensor z = model->head->forward(pooled.unsqueeze(2).unsqueeze(3)).contiguous();
+  // read-out features (N, F) -> logits into `logits`, features into `features`.
+  void finish(const torch::Tensor& read_out, float* logits, float* out_features) {
+    const torch::Tensor z = model->classify(read_out).contiguous();
     std::memcpy(logits, z.data_ptr<float>(), sizeof(float) * z.numel());
-    const torch::Tensor f = pooled.contiguous();
+    const torch::Tensor f = read_out.contiguous();
     std::memcpy(out_features, f.data_ptr<float>(), sizeof(float) * f.numel());
   }
 };
@@ -27,7 +28,7 @@ struct WindowModel::Impl {
 WindowModel::WindowModel(const std::filesystem::path& model_file) : impl_(std::make_unique<Impl>()) {
   impl_->model = load_classifier(model_file, impl_->artifact);
   impl_->model->eval();
-  impl_->features = static_cast<int>(impl_->model->encoder->feature_channels());
+  impl_->features = static_cast<int>(readout_features(impl_->artifact.spec));
   impl_->feature_stride = static_cast<int>(impl_->model->encoder->stage_strides().back());
 }
 
@@ -44,11 +45,13 @@ void WindowModel::exact(const float* windows, int count, float* logits, float* f
   const auto bands = static_cast<std::int64_t>(impl_->artifact.normalisation.bands.size());
   const std::int64_t size = impl_->artifact.chip_size;
   const torch::Tensor x = torch::from_blob(const_cast<float*>(windows), {count, bands, size, size}, torch::kFloat32);
-  const torch::Tensor pooled = impl_->model->encoder->forward(x).mean({2, 3});  // (N, F)
-  impl_->finish(pooled, logits, features);
+  impl_->finish(impl_->model->features(x), logits, features);  // (N, F) as the head reads it
 }
 
 void WindowModel::dense(const float* tile, int height, int width, int stride, float* logits, float* features) {
+  if (impl_->artifact.spec.head.pool != HeadPool::global) {  // map settings refuse this first
+    fail_usage("map: dense mode needs a run whose head pools the whole window (head.pool global)");
+  }
   torch::InferenceMode inference;
   const auto bands = static_cast<std::int64_t>(impl_->artifact.normalisation.bands.size());
   const torch::Tensor x = torch::from_blob(const_cast<float*>(tile), {1, bands, height, width}, torch::kFloat32);

@@ -1,11 +1,13 @@
 // The run's classifier applied to map windows, in two ways that give the same numbers up
 // to context at window borders:
-// - exact: each window is its own input, as a chip is;
-// - dense: the encoder runs once over a tile holding many overlapping windows and its
-//   feature map is average-pooled with the window's size at the stride's step, which is
-//   what the head's global pool does inside each window (the stride must be a multiple of
-//   the encoder's deepest stride).
-// Either way a window yields its pooled features (the head's input, used for the area of
+// - exact: each window is its own input, as a chip is, read out as the run's head reads a
+//   chip (any head.pool: the whole window, or the readout at its centre pixel);
+// - dense, for runs whose head pools the whole window (head.pool global): the encoder runs
+//   once over a tile holding many overlapping windows and its feature map is
+//   average-pooled with the window's size at the stride's step, which is what the head's
+//   global pool does inside each window (the stride must be a multiple of the encoder's
+//   deepest stride).
+// Either way a window yields the features its head reads (used for the area of
 // applicability) and its logits. LibTorch stays behind the pimpl.
 #pragma once
 

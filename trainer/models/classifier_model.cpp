@@ -103,11 +103,14 @@ torch::Tensor ClassifierModelImpl::forward(torch::Tensor x) {
     // (B, bands, H, W) -> (B, C, h, w) -> (B, classes): the head pools
     return head->forward(encoder->forward(x));
   }
-  x = features(x);  // -> (B, F)
+  return classify(features(x));  // -> (B, F) -> (B, classes)
+}
+
+torch::Tensor ClassifierModelImpl::classify(torch::Tensor features) {
   switch (spec_.head.kind) {
-    case HeadKind::trained: return head->forward(x);
-    case HeadKind::linear_probe: return linear_probe->forward(x);
-    case HeadKind::knn: return knn->forward(x);
+    case HeadKind::trained: return head->forward(features);
+    case HeadKind::linear_probe: return linear_probe->forward(features);
+    case HeadKind::knn: return knn->forward(features);
   }
   fail_runtime("model: unknown head kind");
 }

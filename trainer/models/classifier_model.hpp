@@ -35,6 +35,8 @@ class ClassifierModelImpl : public torch::nn::Module {
   torch::Tensor forward(torch::Tensor x);
   // (B, bands, H, W) -> (B, readout_features(spec)): what the head sees.
   torch::Tensor features(torch::Tensor x);
+  // (B, readout_features(spec)) -> (B, classes) logits: the head alone.
+  torch::Tensor classify(torch::Tensor features);
   const ClassifierSpec& spec() const { return spec_; }
 
   // The encoder and, when the readout uses it, the decoder: frozen or trained together.
