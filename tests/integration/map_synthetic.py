@@ -119,6 +119,12 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
         f.write(f"config: map\nrun: runs/ft\noutput: maps/exact\nstride: {STRIDE}\nmode: exact\n"
                 f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
     tinct(["check", "map.yaml"], work)
+    # Without mode: a map is exact (it agrees with the model as it scores chips); tinct check
+    # prints the default filled in.
+    with open(os.path.join(work, "map-default.yaml"), "w") as f:
+        f.write(open(os.path.join(work, "map.yaml")).read().replace("mode: exact\n", ""))
+    resolved = tinct(["check", "map-default.yaml"], work).stdout
+    checks.check("\nmode: exact\n" in resolved, f"tinct check does not show mode: exact by default:\n{resolved[:800]}")
     with open(os.path.join(work, "map-missing.yaml"), "w") as f:
         f.write(f"config: map\nrun: runs/ft\noutput: maps/missing\nsensor: {profile}\n"
                 "scenes: [{id: b, date: 2026-06-14, files: {blue: b.tif}}]\n")
