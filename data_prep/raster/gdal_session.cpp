@@ -58,4 +58,13 @@ std::string last_gdal_message() {
 
 std::string gdal_version() { return GDALVersionInfo("RELEASE_NAME"); }
 
+// Measured with GDAL 3.6 on a 4096 x 4096, 12-band DEFLATE scene of 256 px tiles read in
+// map strips 304 rows high every 256 rows: with the multi-threaded decoder reading took 6.1
+// to 6.5 CPU s (tile rows two strips share decoded twice; a block cache of 96 MB instead
+// of 64 avoided that, at 50 MB more peak memory), on one thread 4.1 to 4.5 s.
+void decode_tiles_on_one_thread() {
+  ensure_gdal();
+  if (!std::getenv("GDAL_NUM_THREADS")) CPLSetConfigOption("GDAL_NUM_THREADS", "1");
+}
+
 }  // namespace tinct

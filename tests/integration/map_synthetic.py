@@ -119,6 +119,12 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
         f.write(f"config: map\nrun: runs/ft\noutput: maps/exact\nstride: {STRIDE}\nmode: exact\n"
                 f"probabilities: float32\nmin_valid: 0.5\nsensor: {profile}\n" + scenes)
     tinct(["check", "map.yaml"], work)
+    # Without mode: a map is exact (it agrees with the model as it scores chips); tinct check
+    # prints the default filled in.
+    with open(os.path.join(work, "map-default.yaml"), "w") as f:
+        f.write(open(os.path.join(work, "map.yaml")).read().replace("mode: exact\n", ""))
+    resolved = tinct(["check", "map-default.yaml"], work).stdout
+    checks.check("\nmode: exact\n" in resolved, f"tinct check does not show mode: exact by default:\n{resolved[:800]}")
     with open(os.path.join(work, "map-missing.yaml"), "w") as f:
         f.write(f"config: map\nrun: runs/ft\noutput: maps/missing\nsensor: {profile}\n"
                 "scenes: [{id: b, date: 2026-06-14, files: {blue: b.tif}}]\n")
@@ -239,6 +245,7 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
 
     # --points from an OGR layer: the first 12 chips as GeoJSON points in longitude and
     # latitude (transformed by GDAL's osr), the same windows and probabilities as the CSV's.
+    # The layer has no id field, so a point's id is its feature id.
     from osgeo import ogr, osr
     utm, wgs84 = osr.SpatialReference(), osr.SpatialReference()
     utm.ImportFromEPSG(32632)
@@ -247,21 +254,45 @@ train: {epochs: 12, batch: 16, lr: 0.003, seed: 1, patience: 12}
     to_wgs84 = osr.CoordinateTransformation(utm, wgs84)
     vector = ogr.GetDriverByName("GeoJSON").CreateDataSource(os.path.join(work, "assessed.geojson"))
     layer = vector.CreateLayer("chips", wgs84, ogr.wkbPoint)
-    layer.CreateField(ogr.FieldDefn("id", ogr.OFTString))
+    layer.CreateField(ogr.FieldDefn("name", ogr.OFTString))
     for i, row in enumerate(assessed[:12]):
         lon, lat, _ = to_wgs84.TransformPoint(float(row["x"]), float(row["y"]))
         feature = ogr.Feature(layer.GetLayerDefn())
-        feature.SetField("id", f"chip{i}")
+        feature.SetField("name", f"chip{i}")
         feature.SetGeometry(ogr.CreateGeometryFromWkt(f"POINT ({lon!r} {lat!r})"))
         layer.CreateFeature(feature)
     vector = None
     tinct(["map", "map-raw-a.yaml", "--points", "assessed.geojson", "--out", "maps/raw-a-vector"], work)
     from_vector = list(csv.DictReader(open(os.path.join(work, "maps", "raw-a-vector", "points.csv"))))
-    # (A vector point's id is its feature id: GeoJSON numbers features from 0.)
+    # (GeoJSON numbers features from 0.)
+    checks.check([row["id"] for row in from_vector] == [str(i) for i in range(12)],
+                 f"GeoJSON points without an id field: ids {[row['id'] for row in from_vector]}, not the feature ids")
     worst = max(abs(float(row[f"p_{name}"]) - float(mapped[f"chip{row['id']}"][f"p_{name}"]))
                 for row in from_vector for name in ("dark", "bright")) if from_vector else float("inf")
     checks.check(len(from_vector) == 12 and worst < 1e-6,
                  f"GeoJSON points: {len(from_vector)} rows, max |dp| against the CSV's {worst:.2e}")
+
+    # A GeoPackage written by GDAL's ogr2ogr from a CSV of chips 12 to 23 in the scene's CRS,
+    # with an ID column (upper case) of site names: the points carry those ids, in
+    # points.csv and in points.gpkg, and the CSV's probabilities.
+    with open(os.path.join(work, "sites.csv"), "w") as f:
+        f.write("ID,x,y\n")
+        for i, row in enumerate(assessed[12:24]):
+            f.write(f"site-{12 + i},{row['x']},{row['y']}\n")
+    subprocess.run(["ogr2ogr", "-f", "GPKG", "sites.gpkg", "sites.csv", "-nln", "sites", "-a_srs", "EPSG:32632",
+                    "-oo", "X_POSSIBLE_NAMES=x", "-oo", "Y_POSSIBLE_NAMES=y"], cwd=work, check=True)
+    tinct(["map", "map-raw-a.yaml", "--points", "sites.gpkg", "--out", "maps/raw-a-gpkg"], work)
+    from_gpkg = list(csv.DictReader(open(os.path.join(work, "maps", "raw-a-gpkg", "points.csv"))))
+    expected_ids = [f"site-{12 + i}" for i in range(12)]
+    checks.check([row["id"] for row in from_gpkg] == expected_ids,
+                 f"GeoPackage points: ids {[row['id'] for row in from_gpkg]}, not its ID field {expected_ids}")
+    worst = max(abs(float(row[f"p_{name}"]) - float(mapped[f"chip{12 + i}"][f"p_{name}"]))
+                for i, row in enumerate(from_gpkg) for name in ("dark", "bright")) if from_gpkg else float("inf")
+    checks.check(len(from_gpkg) == 12 and worst < 1e-6,
+                 f"GeoPackage points: {len(from_gpkg)} rows, max |dp| against the CSV's {worst:.2e}")
+    package = gdal.OpenEx(os.path.join(work, "maps", "raw-a-gpkg", "points.gpkg"))  # held: the layer lives in it
+    package_ids = [feature.GetField("id") for feature in package.GetLayer(0)]
+    checks.check(package_ids == expected_ids, f"points.gpkg ids {package_ids}, not the input's ID field")
 
     # The bright square (pixels rows 96-160, cols 48-112): windows inside it are bright,
     # windows touching neither it nor the unseen patch nor the mask are dark.

@@ -72,22 +72,29 @@ train: {epochs: 8, batch: 16, lr: 0.002, seed: 4, patience: 8}
 
     scene_wkt = json.loads(subprocess.run(["gdalinfo", "-json", L7], capture_output=True, text=True,
                                           check=True).stdout)["coordinateSystem"]["wkt"]
-    for product in ("probabilities", "classes", "uncertainty", "aoa"):
-        path = os.path.join(work, "maps", "l7", "l7", product + ".tif")
-        warnings, errors, _ = validate_cloud_optimized_geotiff.validate(path, full_check=True)
-        checks.check(not errors, f"{product}.tif fails GDAL's COG validation: {errors}")
-        info = json.loads(subprocess.run(["gdalinfo", "-json", path], capture_output=True, text=True,
-                                         check=True).stdout)
-        checks.check(info["coordinateSystem"]["wkt"] == scene_wkt, f"{product}.tif: CRS differs from the scene's")
-        step = 8 if product == "aoa" else 1  # dense mode: the AOA from exact windows every 8th window
-        checks.check(abs(info["geoTransform"][1] - 28.5 * 16 * step) < 1e-9,
-                     f"{product}.tif: pixel size is not 28.5 x 16 x {step}")
+    def check_products(folder, name, aoa_step):
+        for product in ("probabilities", "classes", "uncertainty", "aoa"):
+            path = os.path.join(work, "maps", folder, name, product + ".tif")
+            warnings, errors, _ = validate_cloud_optimized_geotiff.validate(path, full_check=True)
+            checks.check(not errors, f"{folder}: {product}.tif fails GDAL's COG validation: {errors}")
+            info = json.loads(subprocess.run(["gdalinfo", "-json", path], capture_output=True, text=True,
+                                             check=True).stdout)
+            checks.check(info["coordinateSystem"]["wkt"] == scene_wkt,
+                         f"{folder}: {product}.tif: CRS differs from the scene's")
+            step = aoa_step if product == "aoa" else 1
+            checks.check(abs(info["geoTransform"][1] - 28.5 * 16 * step) < 1e-9,
+                         f"{folder}: {product}.tif: pixel size is not 28.5 x 16 x {step}")
 
-    # Short form: the 6-band file is refused (exit 2, naming the bands); a stack of B4, B5, B7 maps.
+    # The default mode, exact: the AOA of every window.
+    check_products("l7", "l7", 1)
+
+    # Short form: the 6-band file is refused (exit 2, naming the bands); a stack of B4, B5, B7
+    # maps, here in dense mode (the AOA from exact windows every 8th window).
     refused = tinct(["map", "runs/ft", L7, "--out", "maps/short"], work, expect=2)
     checks.check("B4, B5, B7" in refused.stderr, f"the refusal does not name the bands: {refused.stderr[-400:]}")
     gdal.Translate(os.path.join(work, "b457.tif"), L7, bandList=[4, 5, 6])
-    tinct(["map", "runs/ft", "b457.tif", "--out", "maps/short", "--mode", "exact", "--stride", "16"], work)
+    tinct(["map", "runs/ft", "b457.tif", "--out", "maps/short", "--mode", "dense", "--stride", "16"], work)
+    check_products("short", "b457", 8)
     short = gdal.Open(os.path.join(work, "maps", "short", "b457", "classes.tif"))
     full = gdal.Open(os.path.join(work, "maps", "l7", "l7", "classes.tif"))
     checks.check(short is not None and short.RasterXSize == full.RasterXSize, "the short form's map differs in size")

@@ -11,6 +11,7 @@
 #include "mapping/run_evidence.hpp"
 #include "mapping/scene_mapper.hpp"
 #include "mapping/map_model.hpp"
+#include "raster/gdal_session.hpp"
 #include "raster/target_grid.hpp"
 #include "raster/vrt_mosaic.hpp"
 #include "runs/metrics_log.hpp"
@@ -103,6 +104,7 @@ void keep_freed_memory_for_reuse() {
 
 void run_map(const MapSettings& s, const MapJobOptions& options) {
   keep_freed_memory_for_reuse();
+  decode_tiles_on_one_thread();  // strips overlap: each tile decoded once
   MapModel model(s.runs);
   log::info("map: " + s.source + ", " + std::to_string(s.inputs.chip_size) + " px windows at stride " +
             std::to_string(s.stride) + " px, " + to_string(s.mode) + " mode, classes " +

@@ -2,11 +2,11 @@
 // `tinct map RUN RASTER --out DIR`. Required: output, scenes (as in label configs) and one
 // of run: (a finetune run), runs: (an ensemble of runs) or study: with arm: (optional
 // budget:, fold:; the rule in study_arm_runs.hpp).
-// Defaults: stride chip size / 4, mode dense where the stride is a multiple of the
-// encoder's deepest stride (else exact), probabilities uint8, min_valid 0.5, aoa true,
-// sensor none (scenes are read with a profile made from the run's bands, and stored
-// values become reflectance with the scale and offset of the run's label store),
-// grid resolution the run's store pixel size, aoa_step 8 (dense mode only).
+// Defaults: stride chip size / 4, mode exact (dense, the faster approximation, needs a
+// stride that is a multiple of the encoder's deepest stride), probabilities uint8,
+// min_valid 0.5, aoa true, sensor none (scenes are read with a profile made from the run's
+// bands, and stored values become reflectance with the scale and offset of the run's label
+// store), grid resolution the run's store pixel size, aoa_step 8 (dense mode only).
 #pragma once
 
 #include <filesystem>
@@ -43,7 +43,7 @@ struct MapSettings {
   std::string source;                       // where the runs came from, in words
   std::filesystem::path output;
   int stride = 0;
-  MapMode mode = MapMode::dense;
+  MapMode mode = MapMode::exact;
   ProbabilityType probabilities = ProbabilityType::uint8;
   double min_valid = 0.5;
   bool aoa = true;

@@ -21,13 +21,25 @@ namespace {
 
 constexpr int kStripWindowRows = 32;       // at most; a multiple of every aoa_step
 constexpr double kStripBytes = 64.0 * 1024 * 1024;  // scene values held at once
-constexpr int kTileWindowColumns = 24;  // tile activations stay well within the memory goal
+constexpr int kTileWindowColumns = 24;  // at least: tile activations stay well within the memory goal
+// Pixels of a dense tile at most, unless kTileWindowColumns take more: the tile of a full
+// strip of 64 px windows (32 rows by 24 columns, 560 x 432 px), within the memory goal. A
+// lower strip (a wide scene's) takes more columns, so fewer pixels sit in the overlap
+// encoded twice (4096 px scene: 46 columns, 6 % overlap across instead of 12 %).
+constexpr double kTilePixels = 560.0 * 432.0;
+
+// Window columns per dense tile for a strip `height` pixels high.
+int tile_window_columns(const WindowLayout& layout, int height) {
+  const int fit = static_cast<int>((kTilePixels / height - layout.size) / layout.stride) + 1;
+  return std::max(kTileWindowColumns, fit);
+}
 
 void run_dense(MapModel& model, const SceneStrip& strip, const WindowLayout& layout, int rows, WindowOutputs& out) {
   std::vector<float> tile;
   WindowOutputs part;
-  for (int c0 = 0; c0 < layout.columns; c0 += kTileWindowColumns) {
-    const int columns = std::min(kTileWindowColumns, layout.columns - c0);
+  const int tile_columns = tile_window_columns(layout, strip.height());
+  for (int c0 = 0; c0 < layout.columns; c0 += tile_columns) {
+    const int columns = std::min(tile_columns, layout.columns - c0);
     const int width = (columns - 1) * layout.stride + layout.size;
     tile.resize(static_cast<std::size_t>(strip.bands()) * strip.height() * width);
     strip.copy(c0 * layout.stride, 0, width, strip.height(), tile.data());
