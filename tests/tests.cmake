@@ -16,6 +16,7 @@ function(tinct_script_test name)
 endfunction()
 
 tinct_script_test(cli_exit_codes bash ${CMAKE_SOURCE_DIR}/tests/integration/cli_exit_codes.sh)
+tinct_script_test(cli_two_binaries bash ${CMAKE_SOURCE_DIR}/tests/integration/cli_two_binaries.sh)
 tinct_script_test(check_configs bash ${CMAKE_SOURCE_DIR}/tests/integration/check_configs.sh)
 
 tinct_script_test(reference_survey_vs_gdalinfo

@@ -106,22 +106,19 @@ BandStatistics summarise(const BandPass& pass, ValueOfBin value_of_bin) {
 
 std::vector<BandStatistics> uint16_statistics(const StoreLayout& layout, std::int64_t chip_count,
                                               const std::uint8_t* bands, const std::uint8_t* valid) {
-  // A bin per stored value: the histogram alone holds every moment, so the pass over the
-  // pixels only counts (the store's statistics were an eighth of pair's time with Welford).
-  std::vector<BandPass> passes(layout.bands.size());
-  const auto visit = [&](std::int64_t band, std::int64_t, std::int64_t, std::uint16_t stored) {
-    ++passes[band].histogram[stored];
-  };
-  for_each_valid<std::uint16_t>(layout, chip_count, bands, valid, visit);
-  std::vector<BandStatistics> result;
-  for (std::size_t band = 0; band < passes.size(); ++band) {
-    passes[band].stats = moments_of_histogram(passes[band].histogram, layout.bands[band]);
-    const auto value_of_bin = [&](std::size_t bin, std::int64_t) {
-      return reflectance(layout.bands[band], static_cast<double>(bin));
-    };
-    result.push_back(summarise(passes[band], value_of_bin));
+  BandHistograms histograms(layout);
+  const std::int64_t area = chip_valid_bytes(layout), chip_bytes = chip_band_bytes(layout);
+  std::int64_t released = 0;  // chips whose pages were handed back
+  for (std::int64_t chip = 0; chip < chip_count; ++chip) {
+    histograms.add_chip(reinterpret_cast<const std::uint16_t*>(bands + chip * chip_bytes), valid + chip * area);
+    if ((chip + 1) % kReleaseEvery == 0 || chip + 1 == chip_count) {
+      const std::int64_t done = chip + 1 - released;
+      release_pages(bands + released * chip_bytes, static_cast<std::size_t>(done * chip_bytes));
+      release_pages(valid + released * area, static_cast<std::size_t>(done * area));
+      released = chip + 1;
+    }
   }
-  return result;
+  return histograms.statistics();
 }
 
 std::vector<BandStatistics> float32_statistics(const StoreLayout& layout, std::int64_t chip_count,
@@ -164,6 +161,37 @@ std::vector<BandStatistics> float32_statistics(const StoreLayout& layout, std::i
 }
 
 }  // namespace
+
+BandHistograms::BandHistograms(const StoreLayout& layout)
+    : layout_(layout),
+      area_(static_cast<std::size_t>(chip_valid_bytes(layout))),
+      counts_(layout.bands.size(), std::vector<std::int64_t>(kBins, 0)) {}
+
+void BandHistograms::add_chip(const std::uint16_t* bands, const std::uint8_t* valid) {
+  // A bin per stored value: the histogram alone holds every moment, so the pass over the
+  // pixels only counts (the store's statistics were an eighth of pair's time with Welford).
+  for (std::size_t band = 0; band < counts_.size(); ++band) {
+    std::int64_t* counts = counts_[band].data();
+    const std::uint16_t* plane = bands + band * area_;
+    for (std::size_t p = 0; p < area_; ++p) {
+      if (valid[p] != 0) ++counts[plane[p]];
+    }
+  }
+}
+
+std::vector<BandStatistics> BandHistograms::statistics() const {
+  std::vector<BandStatistics> result;
+  for (std::size_t band = 0; band < counts_.size(); ++band) {
+    BandPass pass;
+    pass.histogram = counts_[band];
+    pass.stats = moments_of_histogram(pass.histogram, layout_.bands[band]);
+    const auto value_of_bin = [&](std::size_t bin, std::int64_t) {
+      return reflectance(layout_.bands[band], static_cast<double>(bin));
+    };
+    result.push_back(summarise(pass, value_of_bin));
+  }
+  return result;
+}
 
 std::vector<BandStatistics> band_statistics(const StoreLayout& layout, std::int64_t chip_count,
                                             const std::uint8_t* bands, const std::uint8_t* valid) {

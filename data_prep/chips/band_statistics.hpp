@@ -3,6 +3,8 @@
 // (linear) percentile. Exact for uint16 storage (a bin per stored value, which also gives
 // mean and std); for float32, Welford (RunningStats) for mean, std, min and max in a first
 // pass, and the percentiles are exact to a bin width, (max - min) / 65536.
+// A uint16 store's writer counts its histograms chip by chip as it writes (BandHistograms),
+// so it never reads bands.bin back; band_statistics() gives the same figures from the files.
 #pragma once
 
 #include <algorithm>
@@ -19,6 +21,20 @@ namespace tinct {
 // a valid pixel.
 std::vector<BandStatistics> band_statistics(const StoreLayout& layout, std::int64_t chip_count,
                                             const std::uint8_t* bands, const std::uint8_t* valid);
+
+// The histograms of uint16 storage, a bin per stored value, counted chip by chip.
+class BandHistograms {
+ public:
+  explicit BandHistograms(const StoreLayout& layout);
+  // One chip: bands x size x size stored values and size x size validity, as in the files.
+  void add_chip(const std::uint16_t* bands, const std::uint8_t* valid);
+  std::vector<BandStatistics> statistics() const;
+
+ private:
+  StoreLayout layout_;
+  std::size_t area_;
+  std::vector<std::vector<std::int64_t>> counts_;  // per band, 65536 bins
+};
 
 // numpy.percentile(values, percent) with its default linear method, given the k-th
 // smallest of `count` values by `value_of_rank(k)`.

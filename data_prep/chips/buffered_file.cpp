@@ -44,18 +44,29 @@ void BufferedFile::close() {
   if (::fsync(fd_) != 0 && errno != EINVAL) {
     fail_write(path_, std::string("fsync failed: ") + std::strerror(errno), -1, written_);
   }
+  digest_ = hash_.hex_digest();
   const int fd = fd_;
   fd_ = -1;
   if (::close(fd) != 0) fail_write(path_, std::string("close failed: ") + std::strerror(errno), -1, written_);
 }
 
+const std::string& BufferedFile::sha256() const {
+  if (digest_.empty()) fail_runtime("the checksum of " + path_.string() + " is known only after close()");
+  return digest_;
+}
+
 void BufferedFile::flush() {
+  const std::int64_t from = written_;
   write_through(buffer_.data(), used_);
   used_ = 0;
+  // Starts the disk write of what just went out, so close()'s fsync waits only for the
+  // last of it; best effort (fsync reports any failure).
+  if (written_ > from) ::sync_file_range(fd_, from, written_ - from, SYNC_FILE_RANGE_WRITE);
 }
 
 void BufferedFile::write_through(const char* data, std::size_t size) {
   const auto attempted = static_cast<std::int64_t>(size);
+  hash_.update(data, size);  // a failed write ends the store, so the hash never sees a byte twice
   while (size > 0) {
     const ssize_t written = ::write(fd_, data, size);
     if (written < 0 && errno == EINTR) continue;

@@ -30,14 +30,6 @@ std::string identity_of(const fs::path& store) {
 
 }  // namespace
 
-std::map<std::string, std::string> store_checksums(const fs::path& folder) {
-  std::map<std::string, std::string> checksums;
-  for (const char* name : kDataFiles) {
-    if (fs::exists(folder / name)) checksums[name] = sha256_file(folder / name);
-  }
-  return checksums;
-}
-
 void verify_store_checksums(const fs::path& store, const StoreManifest& manifest) {
   if (manifest.checksums.empty()) return;
   static std::mutex mutex;

@@ -1,5 +1,5 @@
 // Checksums of a store's data files: the writer records the SHA-256 of bands.bin,
-// colour.bin, valid.bin and chips.csv in the manifest; opening the store reads each
+// colour.bin, valid.bin and chips.csv in the manifest (hashed as it writes them); opening the store reads each
 // file once (in blocks) and compares, so flipped bytes fail at once, naming the file,
 // instead of training on damaged chips. A store is checked once per process.
 #pragma once
@@ -11,9 +11,6 @@
 #include "chips/store_manifest.hpp"
 
 namespace tinct {
-
-// {file name: SHA-256 hex} of the data files present in `folder`.
-std::map<std::string, std::string> store_checksums(const std::filesystem::path& folder);
 
 // Fails (runtime) naming the first file whose SHA-256 differs from the manifest's. A
 // manifest without checksums (an older store) is accepted as it is.

@@ -4,12 +4,11 @@
 #include <unistd.h>
 
 #include <cmath>
-#include <future>
 
 #include "chips/band_statistics.hpp"
 #include "chips/mapped_file.hpp"
-#include "chips/store_checksums.hpp"
 #include "util/error.hpp"
+#include "util/stage_times.hpp"
 #include "util/version_info.hpp"
 
 namespace fs = std::filesystem;
@@ -56,6 +55,7 @@ StoreWriter::StoreWriter(fs::path target, StoreLayout layout, bool replace)
   chips_csv_ = std::make_unique<BufferedFile>(folder_.path() / "chips.csv", 1 << 20);
   const std::string header = chip_csv_header(layout_.kind == StoreKind::labels) + "\n";
   chips_csv_->write(header.data(), header.size());
+  if (layout_.storage == StorageType::uint16) histograms_.emplace(layout_);
 }
 
 StoreWriter::~StoreWriter() = default;
@@ -105,6 +105,7 @@ void StoreWriter::append(const ChipRecord& record, const void* bands, const std:
   }
   state_ = State::failed;  // until every file has its share of this chip
   bands_->write(bands, band_bytes_);
+  if (histograms_) histograms_->add_chip(static_cast<const std::uint16_t*>(bands), valid);
   if (colour_ && colour) colour_->write(colour, colour_bytes_);
   valid_->write(valid, valid_bytes_);
   row_.clear();
@@ -144,16 +145,19 @@ void StoreWriter::finish(StoreManifest header_fields) {
   for (BufferedFile* file : {bands_.get(), colour_.get(), valid_.get(), chips_csv_.get()}) {
     if (file != nullptr) file->close();
   }
-  // Two reads of the written files, side by side on two cores.
-  auto statistics = std::async(std::launch::async, [this] { return statistics_of_written(); });
-  manifest.checksums = store_checksums(folder_.path());
-  manifest.statistics = statistics.get();
+  stage_done("close");
+  for (BufferedFile* file : {bands_.get(), colour_.get(), valid_.get(), chips_csv_.get()}) {
+    if (file != nullptr) manifest.checksums[file->path().filename().string()] = file->sha256();
+  }
+  manifest.statistics = histograms_ ? histograms_->statistics() : statistics_of_written();
+  stage_done("statistics");
   if (manifest.statistics.front().count == 0) {
     fail_runtime("store " + target().string() + ": no chip has a valid pixel; check nodata and masks");
   }
   write_file_atomic(folder_.path() / "manifest.yaml", manifest_yaml(manifest));
   sync_folder(folder_.path());
   folder_.commit();
+  stage_done("manifest");
   state_ = State::finished;
 }
 

@@ -1,16 +1,20 @@
 // Writes a chip store chip by chip into NAME.partial/ and renames it to NAME in
 // finish(), so a store is either complete or absent. Pixels stream to the .bin
-// files through large buffers and are never held; finish() computes the band
-// statistics in one pass over the written bands.bin through a read-only map.
+// files through large buffers and are never held, hashed as they go out (the
+// manifest's checksums); a uint16 store counts its band statistics' histograms as
+// chips arrive, a float32 store's finish() takes them in passes over the written
+// bands.bin through a read-only map.
 #pragma once
 
 #include <cstdint>
 #include <filesystem>
 #include <memory>
+#include <optional>
 #include <set>
 #include <string>
 #include <vector>
 
+#include "chips/band_statistics.hpp"
 #include "chips/buffered_file.hpp"
 #include "chips/chip_record.hpp"
 #include "chips/store_manifest.hpp"
@@ -69,6 +73,7 @@ class StoreWriter {
   std::unique_ptr<BufferedFile> colour_;
   std::unique_ptr<BufferedFile> valid_;
   std::unique_ptr<BufferedFile> chips_csv_;
+  std::optional<BandHistograms> histograms_;  // uint16 storage
   std::string row_;
   std::set<std::string> scenes_seen_;
   std::set<std::string> labels_seen_;

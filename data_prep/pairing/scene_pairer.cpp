@@ -16,6 +16,7 @@
 #include "raster/scene.hpp"
 #include "util/log.hpp"
 #include "util/progress.hpp"
+#include "util/stage_times.hpp"
 
 namespace tinct {
 namespace {
@@ -379,6 +380,7 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
   }
   pairer.count_colour_rows(counted, grid.height, fit);
   progress.finish();
+  stage_done("one-pass");
   const ColourComposer composer = fit.composer(config.colour.stretch);
   // The co-registration check runs beside the colour's conversion: neither needs the other.
   auto measuring = std::async(std::launch::async, [&] {
@@ -388,6 +390,7 @@ void pair_in_one_pass(const PairConfig& config, const SceneSpec& spec, const Sce
   spill.rewind();
   add_parked_colour(spill, result.tally.written, composer, n, store);
   const ShiftReport shift = measuring.get();
+  stage_done("colour");
   judge_shift(shift, config.coregistration, spec.id);
   result.scene = describe(spec, pairer.scene(), shift);
 }
@@ -403,6 +406,7 @@ ScenePairing pair_scene(const PairConfig& config, const SceneSpec& spec, std::ui
     log::warning("scene " + spec.id + ": " + std::to_string(grid.width) + " x " + std::to_string(grid.height) +
                  " px, smaller than one chip (chips.size " + std::to_string(config.chips.size) + "): no chip from it");
   }
+  stage_done("open");
   const auto windows = plan_chips(grid.width, grid.height, config.chips, scene_number);
   ScenePairing result;
   result.tally.planned = static_cast<std::int64_t>(windows.size());

@@ -9,8 +9,10 @@ GeoTIFF cut into 64 px chips, in interleaved rounds (best and median):
 - peak resident memory of tinct pair (goal: under 400 MB);
 - the naive way: gdal_translate -srcwin per chip (a sample of chips, extrapolated);
 - scaling: tinct pair over 1, 2 and 4 copies of the scene (should be linear);
-- tinct's start-up alone (`tinct --version`: loading its libraries, LibTorch's among them),
-  a fixed cost inside every pair time above."""
+- start-up alone, a fixed cost inside every pair time above: `tinct pair --help` (tinct
+  runs pair without LibTorch) and `tinct --version` (handed to tinct-torch, which loads
+  LibTorch), wall and CPU seconds, interleaved;
+- where pair's time goes: one pair with TINCT_STAGE_TIMES=1 (wall and CPU seconds per stage)."""
 import os
 import resource
 import statistics
@@ -97,7 +99,14 @@ def main(TINCT, WORK):
                 pairs.append(seconds(pair_cmd))
                 pair_cpu.append(CPU[-1])
     pair_peak = peak_rss_mb(pair_cmd)
-    startup = min(seconds([TINCT, "--version"]) for _ in range(3))
+    startup = {"pair --help": ([], []), "--version": ([], [])}
+    for _ in range(5):
+        for which, (walls, cpus) in startup.items():
+            walls.append(seconds([TINCT] + which.split()))
+            cpus.append(CPU[-1])
+    staged = subprocess.run(pair_cmd, check=True, capture_output=True, text=True,
+                            env=dict(os.environ, TINCT_STAGE_TIMES="1")).stderr
+    stages = [line[len("stage "):] for line in staged.splitlines() if line.startswith("stage ")]
     scaling = {}
     for r in range(max(1, ROUNDS - 1)):
         for copies in (1, 2, 4):
@@ -125,10 +134,14 @@ def main(TINCT, WORK):
         ("CPU seconds, decode and pair", f"best {min(decode_cpu):.2f} s and {min(pair_cpu):.2f} s: "
                                          f"{min(pair_cpu) / min(decode_cpu):.2f}x", ""),
         ("tinct pair peak resident memory", f"{pair_peak:.0f} MB", "goal < 400 MB"),
-        ("tinct start-up (--version)", f"best {startup:.2f} s of 3, inside every pair time", ""),
+        ("start-up: tinct pair --help", f"best {min(startup['pair --help'][0]):.2f} s wall, "
+                                        f"{min(startup['pair --help'][1]):.2f} s CPU of 5 (no LibTorch)", ""),
+        ("start-up: tinct --version", f"best {min(startup['--version'][0]):.2f} s wall, "
+                                      f"{min(startup['--version'][1]):.2f} s CPU of 5 (tinct-torch, LibTorch)", ""),
         ("naive gdal_translate -srcwin", f"{naive_rate:.1f} chips/s (~{chips / naive_rate:.0f} s for the scene)", ""),
         ("tinct pair speed-up over naive", f"{(chips / p_best) / naive_rate:.0f}x", ""),
     ]
+    rows += [(f"pair stage: {stage.split(':')[0]}", stage.split(": ", 1)[1], "") for stage in stages]
     for copies in (1, 2, 4):
         best = min(scaling[copies])
         rows.append((f"scaling: pair of {copies} scene{'s' if copies > 1 else ''}",

@@ -6,7 +6,8 @@ resnet18, each with the same decoder, 12 bands, 64 px chips, batch 32 and all co
 - compute-only step: forward + backward + AdamW on preloaded tensors (tinct: as its
   pretrain runs it, channels-last chips and train.precision auto; the peer: fp32 as written);
 - full loop: tinct pretrain on a store against the peer's DataLoader over memory maps of
-  the same store's files.
+  the same store's files; and tinct's full loop with its compute threads not pinned to
+  cores (TINCT_PIN_THREADS=0), to show what pinning (the default) does.
 Best and median of each side, ratio of bests and of medians. The share of the machine's
 measured peak takes the best of a large torch::mm and numpy's matmul, both in this run.
 
@@ -25,6 +26,7 @@ THREADS = os.cpu_count()
 BATCH, CHIP, BANDS = 32, 64, 12
 STEPS = {"compact": (10, 30), "resnet18": (4, 12)}  # compute-only, full loop
 WORKERS = int(os.environ.get("TINCT_BENCH_PEER_WORKERS", "2"))
+ENCODERS = os.environ.get("TINCT_BENCH_PEER_ENCODERS", "compact,resnet18").split(",")  # e.g. only resnet18
 
 
 def ensure_peer():
@@ -50,7 +52,7 @@ def peer_step(encoder):
                       str(THREADS)])[0])
 
 
-def tinct_loop(tinct, work, store, encoder):
+def tinct_loop(tinct, work, store, encoder, pinned=True):
     steps, name = STEPS[encoder][1], f"peer-{encoder}"
     config = os.path.join(work, name + ".yaml")
     with open(config, "w") as f:
@@ -62,7 +64,9 @@ train: {{steps: {steps + 4}, batch: {BATCH}, warmup: 5, log_every: 4}}
 validation: {{every: 0, chips: 64, previews: 0}}
 checkpoints: {{every: 100000, keep: 1}}
 """)
-    subprocess.run([tinct, "--quiet", "pretrain", config, "--force"], check=True, cwd=work, capture_output=True)
+    env = dict(os.environ, **({} if pinned else {"TINCT_PIN_THREADS": "0"}))
+    subprocess.run([tinct, "--quiet", "pretrain", config, "--force"], check=True, cwd=work, capture_output=True,
+                   env=env)
     with open(os.path.join(work, "runs", name, "metrics.csv")) as f:
         rates = [float(r["chips_per_s"]) for r in csv.DictReader(f) if r.get("chips_per_s")]
     steady = rates[1:] if len(rates) > 1 else rates  # past the first interval (warm-up)
@@ -88,6 +92,8 @@ def report(figures, steps, rounds):
             ("2048^2 matmul, best", f"torch::mm {best_mm:.1f}, numpy {best_np:.1f} GFLOP/s: "
                                     f"{'torch::mm' if best_mm >= best_np else 'numpy'} higher", "")]
     for encoder, goal in (("compact", 1.5), ("resnet18", 1.25)):
+        if encoder not in ENCODERS:
+            continue
         params = steps[encoder][0]["params"]
         for mode in ("step", "loop"):
             tb, tm = best_median(figures[(f"tinct {mode}", encoder)])
@@ -96,6 +102,10 @@ def report(figures, steps, rounds):
             rows.append((name, f"tinct {tb:.1f} / {tm:.1f}, peer {pb:.1f} / {pm:.1f} chips/s (best / median)", ""))
             rows.append(("  ratio tinct / peer", f"{tb / pb:.2f}x of bests, {tm / pm:.2f}x of medians",
                          f"goal >= {goal:.2f}x" if mode == "loop" else ""))
+        ub, um = best_median(figures[("tinct loop unpinned", encoder)])
+        lb, lm = best_median(figures[("tinct loop", encoder)])
+        rows.append(("  tinct loop, threads not pinned", f"{ub:.1f} / {um:.1f} chips/s; pinned / not: {lb / ub:.2f}x of "
+                     f"bests, {lm / um:.2f}x of medians", ""))
         best_step = max(steps[encoder], key=lambda s: s["chips"])
         share = best_step["gflops"] / peak
         rows.append(("  step share of measured peak", f"{100 * share:.0f} % ({best_step['gflops']:.1f} GFLOP/s)", ""))
@@ -112,12 +122,13 @@ def main(tinct, bench, work):
 
     steps = {}
     for r in range(ROUNDS):
-        for encoder in ("compact", "resnet18"):
-            pairs = [("tinct step", lambda: tinct_step(bench, encoder)), ("peer step", lambda: peer_step(encoder)),
-                     ("tinct loop", lambda: tinct_loop(tinct, work, store, encoder)),
-                     ("peer loop", lambda: peer_loop(store, encoder))]
-            for i in (0, 2):
-                order = [pairs[i], pairs[i + 1]] if r % 2 == 0 else [pairs[i + 1], pairs[i]]
+        for encoder in ENCODERS:
+            computes = [("tinct step", lambda: tinct_step(bench, encoder)), ("peer step", lambda: peer_step(encoder))]
+            loops = [("tinct loop", lambda: tinct_loop(tinct, work, store, encoder)),
+                     ("peer loop", lambda: peer_loop(store, encoder)),
+                     ("tinct loop unpinned", lambda: tinct_loop(tinct, work, store, encoder, pinned=False))]
+            for group in (computes, loops):
+                order = group if r % 2 == 0 else group[::-1]
                 for label, measure in order:
                     value = measure()
                     if isinstance(value, dict):

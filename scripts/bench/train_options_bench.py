@@ -3,8 +3,8 @@
 tinct_train_bench (forward + backward + AdamW on preloaded tensors, 12 bands, 64 px,
 batch 32, all cores) in interleaved rounds, for the default model and resnet18:
 contiguous fp32 (the reference), channels-last fp32 (chips in channels-last layout, as
-tinct pretrain feeds them), OpenMP threads pinned to cores (OMP_PROC_BIND=close,
-OMP_PLACES=cores), and bf16 autocast, contiguous and channels-last, when the processor has
+tinct pretrain feeds them), OpenMP threads pinned to cores (as tinct pretrain pins them
+by default; every other variant runs with TINCT_PIN_THREADS=0), and bf16 autocast, contiguous and channels-last, when the processor has
 native bf16 (AVX512-BF16 or AMX; said so when it has not). Then the step time over batch
 16, 32 and 64 as tinct pretrain runs it (channels-last, precision auto), which should grow
 linearly: per chip the same at every batch.
@@ -19,12 +19,12 @@ sys.path.insert(0, os.path.dirname(__file__))
 from bench_common import ROUNDS, best_median, has_native_bf16, machine_line, print_table  # noqa: E402
 
 STEPS = {"compact": "10", "resnet18": "4"}
-PINNED = {"OMP_PROC_BIND": "close", "OMP_PLACES": "cores"}
+UNPINNED = {"TINCT_PIN_THREADS": "0"}
 
 
-def rate(bench, encoder, batch=32, channels_last="0", precision="fp32", env=None):
+def rate(bench, encoder, batch=32, channels_last="0", precision="fp32", env=UNPINNED):
     out = subprocess.run([bench, encoder, "12", "64", str(batch), STEPS[encoder], channels_last, precision],
-                         check=True, capture_output=True, text=True, env=dict(os.environ, **(env or {})))
+                         check=True, capture_output=True, text=True, env=dict(os.environ, **env))
     return float(out.stdout.split()[1])
 
 
@@ -50,7 +50,7 @@ def main(bench, only_scaling=False):
 def options(bench):
     bf16 = has_native_bf16()
     variants = [("contiguous fp32", {}), ("channels-last fp32", {"channels_last": "1"}),
-                ("contiguous fp32, pinned threads", {"env": PINNED})]
+                ("contiguous fp32, pinned threads", {"env": {}})]
     if bf16:
         variants.append(("contiguous bf16 autocast", {"precision": "bf16"}))
         variants.append(("channels-last bf16 autocast", {"channels_last": "1", "precision": "bf16"}))
@@ -70,7 +70,7 @@ def scaling(bench):
     for r in range(ROUNDS):
         for batch in ((16, 32, 64) if r % 2 == 0 else (64, 32, 16)):
             per_batch.setdefault(batch, []).append(batch / rate(bench, "compact", batch=batch, channels_last="1",
-                                                                precision="auto"))
+                                                                precision="auto", env={}))
     base = min(per_batch[16]) / 16
     for batch in (16, 32, 64):
         best = min(per_batch[batch])

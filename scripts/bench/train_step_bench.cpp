@@ -19,6 +19,7 @@
 
 #include "models/colourisation_model.hpp"
 #include "models/model_stats.hpp"
+#include "runs/thread_pinning.hpp"
 #include "runs/torch_runtime.hpp"
 #include "training/precision.hpp"
 
@@ -48,6 +49,7 @@ int main(int argc, char** argv) {
     return 2;
   }
   tinct::configure_threads(0);
+  tinct::pin_compute_threads();  // as tinct pretrain runs (TINCT_PIN_THREADS=0: not)
   tinct::ModelSpec spec;
   spec.encoder.name = argv[1];
   spec.encoder.bands = std::stoi(argv[2]);

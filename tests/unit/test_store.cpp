@@ -4,11 +4,15 @@
 #include <cmath>
 #include <cstring>
 #include <fstream>
+#include <cstdio>
 #include <functional>
 #include <random>
 #include <vector>
 
+#include "chips/band_statistics.hpp"
+#include "chips/buffered_file.hpp"
 #include "chips/chip_record.hpp"
+#include "chips/mapped_file.hpp"
 #include "chips/store_manifest.hpp"
 #include "chips/store_reader.hpp"
 #include "chips/store_writer.hpp"
@@ -605,4 +609,48 @@ TEST_CASE("the manifest text reads back field for field", "[store]") {
   CHECK(read.bands[1].offset == 0.25);
   CHECK(read.scenes[1].path == manifest.scenes[1].path);
   CHECK(read.scenes[1].notes == manifest.scenes[1].notes);
+}
+
+TEST_CASE("a store file's SHA-256, hashed as it is written, equals sha256sum's", "[store]") {
+  TempFolder folder;
+  const fs::path file = folder / "written.bin";
+  std::mt19937 random(7);
+  std::uniform_int_distribution<int> byte(0, 255), size(1, 3000);
+  {
+    tinct::BufferedFile out(file, 1000);  // writes below, at and beyond the buffer, and empty ones
+    for (int i = 0; i < 200; ++i) {
+      std::vector<std::uint8_t> bytes(i % 50 == 0 ? 0 : static_cast<std::size_t>(size(random)));
+      for (auto& b : bytes) b = static_cast<std::uint8_t>(byte(random));
+      out.write(bytes.data(), bytes.size());
+    }
+    CHECK_THROWS_WITH(out.sha256(), Contains("only after close()"));
+    out.close();
+    // Outside reference: GNU coreutils' sha256sum of the file as it lies on disk.
+    const std::string command = "sha256sum '" + file.string() + "'";
+    FILE* pipe = ::popen(command.c_str(), "r");
+    REQUIRE(pipe != nullptr);
+    char text[65] = {};
+    REQUIRE(std::fread(text, 1, 64, pipe) == 64);
+    REQUIRE(::pclose(pipe) == 0);
+    CHECK(out.sha256() == std::string(text));
+  }
+}
+
+TEST_CASE("a uint16 store's statistics counted while writing equal a pass over its files", "[store]") {
+  TempFolder folder;
+  const auto shape = layout(tinct::StorageType::uint16, 16);
+  const auto chips = make_chips(shape, 9, 11);
+  const auto store = tinct::StoreReader::open(write_store(folder / "store", shape, chips));
+  const auto bands = tinct::MappedFile::open(folder / "store" / "bands.bin", tinct::MapAccess::sequential);
+  const auto valid = tinct::MappedFile::open(folder / "store" / "valid.bin", tinct::MapAccess::sequential);
+  const auto from_files = tinct::band_statistics(shape, 9, bands.data(), valid.data());
+  REQUIRE(from_files.size() == store.manifest().statistics.size());
+  for (std::size_t band = 0; band < from_files.size(); ++band) {
+    const tinct::BandStatistics& written = store.manifest().statistics[band];
+    CHECK(written.count == from_files[band].count);
+    CHECK(written.mean == from_files[band].mean);
+    CHECK(written.std == from_files[band].std);
+    CHECK(written.p02 == from_files[band].p02);
+    CHECK(written.p98 == from_files[band].p98);
+  }
 }

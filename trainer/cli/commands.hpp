@@ -7,6 +7,7 @@
 
 #include <functional>
 #include <limits>
+#include <vector>
 
 namespace tinct {
 
@@ -27,6 +28,15 @@ struct CommandEntry {
   const char* summary;
   CommandSetup setup;
 };
+
+// The tool's description and global options, the same in both executables.
+inline const char* const kToolDescription =
+    "tinct: self-supervised band-to-colour pretraining and habitat mapping from multispectral imagery, on the CPU";
+void add_global_options(CLI::App& app, GlobalOptions& global);
+
+// survey, pair and label: they need no LibTorch, so `tinct` runs them in its own process
+// (cli/front_main.cpp); the table of every command (cli/main.cpp) starts with them.
+const std::vector<CommandEntry>& data_commands();
 
 CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_check(CLI::App& command, const GlobalOptions& global);

@@ -4,6 +4,7 @@
 #include "pairing/pair_job.hpp"
 #include "util/config_node.hpp"
 #include "util/sha256.hpp"
+#include "util/stage_times.hpp"
 
 namespace tinct {
 
@@ -30,6 +31,7 @@ static void run_pair(const PairOptions& options) {
       job.output += "." + std::to_string(job.shard_index) + "-of-" + std::to_string(job.shard_count);
     }
   }
+  stage_done("startup");
   run_pair_job(config, job);
 }
 

@@ -16,6 +16,7 @@
 #include "runs/checkpoint.hpp"
 #include "runs/encoder_artifact.hpp"
 #include "runs/metrics_log.hpp"
+#include "runs/thread_pinning.hpp"
 #include "training/lr_schedule.hpp"
 #include "training/data_parallel.hpp"
 #include "training/optimizer.hpp"
@@ -144,6 +145,8 @@ RunOutcome train(Training& t, const PretrainOptions& options) {
   loading.rank = t.parallel.rank();
   loading.world = t.parallel.world();
   BatchLoader loader(t.chips, t.split.train, loading);
+  // After the loader's thread starts (it keeps every core); ranks on one machine would pin onto the same cores.
+  log::info(t.parallel.single() ? pin_compute_threads() : "compute threads not pinned: several processes train");
   const LearningRateSchedule schedule = warmup_cosine(c.train, t.total);
   TrainStep train_step(*t.model, *t.optimizer.optimizer, c.train.clip_norm, t.parallel.gradient_sync(),
                        t.parallel.loss_agreement());
