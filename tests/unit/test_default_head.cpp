@@ -16,6 +16,7 @@
 #include "pretrain/pretrain_config.hpp"
 #include "pretrain/pretrain_job.hpp"
 #include "runs/torch_runtime.hpp"
+#include "pretrain_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "util/config_node.hpp"
@@ -34,13 +35,7 @@ void pretrain(const TempFolder& folder, const std::string& output, const std::st
                            "\nmodel: {encoder: compact, width: 0.5}\nloss: " + loss +
                            "\ntrain: {steps: 2, batch: 4, lr: 0.003, warmup: 1, seed: 5, precision: fp32}\n"
                            "validation: {every: 2, chips: 8, previews: 0}\ncheckpoints: {every: 2, keep: 1}\n";
-  const auto root = tinct::ConfigNode::from_text(yaml, "pretrain.yaml", folder.path());
-  root.choice("config", {"pretrain"});
-  const tinct::PretrainConfig config = tinct::read_pretrain_config(root);
-  root.finish();
-  tinct::PretrainOptions options;
-  options.resolved_config = tinct::resolved_text(root);
-  tinct::run_pretrain(config, options);
+  tinct::testing::run_pretrain_yaml(folder, yaml);
 }
 
 // A folder with the tiny stores and two pretrain runs: runs/lab (smooth-l1) and runs/bins.

@@ -31,6 +31,7 @@
 #include "runs/metrics_log.hpp"
 #include "runs/safetensors.hpp"
 #include "runs/torch_runtime.hpp"
+#include "pretrain_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "training/optimizer.hpp"
@@ -91,16 +92,6 @@ std::vector<double> losses_of(const std::filesystem::path& metrics_csv) {
   return losses;
 }
 
-void run_pretrain_yaml(const TempFolder& folder, const std::string& yaml) {
-  const auto root = tinct::ConfigNode::from_text(yaml, "pretrain.yaml", folder.path());
-  root.choice("config", {"pretrain"});
-  const tinct::PretrainConfig config = tinct::read_pretrain_config(root);
-  root.finish();
-  tinct::PretrainOptions options;
-  options.resolved_config = tinct::resolved_text(root);
-  tinct::run_pretrain(config, options);
-}
-
 tinct::FinetuneResult run_finetune_yaml(const TempFolder& folder, const std::string& yaml) {
   const auto root = tinct::ConfigNode::from_text(yaml, "finetune.yaml", folder.path());
   root.choice("config", {"finetune"});
@@ -125,7 +116,7 @@ TEST_CASE("a tiny seeded pretrain gives its pinned losses", "[parity]") {
   tinct::configure_threads(1);
   TempFolder folder;
   tinct::testing::write_tiny_pair_store(folder / "tiny.pairs", 24);
-  run_pretrain_yaml(folder, kPretrainYaml);
+  tinct::testing::run_pretrain_yaml(folder, kPretrainYaml);
   check_losses(losses_of(folder / "runs/pre/metrics.csv"), kPretrainLosses);
 }
 
@@ -147,7 +138,7 @@ TEST_CASE("tinct export holds exactly the encoder tensors the run ended with") {
   tinct::configure_threads(1);
   TempFolder folder;
   tinct::testing::write_tiny_pair_store(folder / "tiny.pairs", 24);
-  run_pretrain_yaml(folder, kPretrainYaml);
+  tinct::testing::run_pretrain_yaml(folder, kPretrainYaml);
   const auto out = folder / "encoder.safetensors";
   const int count = tinct::export_encoder(folder / "runs/pre", out);
   std::map<std::string, std::string> metadata;

@@ -14,6 +14,7 @@
 #include "pretrain/pretrain_config.hpp"
 #include "pretrain/pretrain_job.hpp"
 #include "runs/torch_runtime.hpp"
+#include "pretrain_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "util/config_node.hpp"
@@ -28,13 +29,7 @@ void pretrain(const TempFolder& folder, const std::string& output, const std::st
                            "train: {steps: 40, batch: 8, lr: 0.003, warmup: 4, log_every: 10, seed: 2, precision: " +
                            precision + "}\nvalidation: {every: 40, chips: 16, previews: 0}\n"
                            "checkpoints: {every: 40, keep: 1}\n";
-  const auto root = tinct::ConfigNode::from_text(yaml, "pretrain.yaml", folder.path());
-  root.choice("config", {"pretrain"});
-  const tinct::PretrainConfig config = tinct::read_pretrain_config(root);
-  root.finish();
-  tinct::PretrainOptions options;
-  options.resolved_config = tinct::resolved_text(root);
-  tinct::run_pretrain(config, options);
+  tinct::testing::run_pretrain_yaml(folder, yaml);
 }
 
 // The last row's validation delta E of a run's metrics.csv.
