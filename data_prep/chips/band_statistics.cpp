@@ -41,24 +41,18 @@ std::size_t bin_of_rank(const Histogram& histogram, std::int64_t rank) {
 
 constexpr std::int64_t kReleaseEvery = 64;  // chips between hand-backs of mapped pages
 
-// Calls visit(band, chip, pixel, stored value) for every valid pixel, chip by chip,
-// handing the visited pages back so the pass stays small whatever the store's size.
-template <typename Stored, typename Visit>
-void for_each_valid(const StoreLayout& layout, std::int64_t chip_count, const std::uint8_t* bands,
-                    const std::uint8_t* valid, Visit visit) {
+// Calls visit(chip, its stored values, its validity) for every chip, handing the visited
+// pages back so the pass stays small whatever the store's size.
+template <typename Stored, typename VisitChip>
+void for_each_chip(const StoreLayout& layout, std::int64_t chip_count, const std::uint8_t* bands,
+                   const std::uint8_t* valid, VisitChip visit) {
   const std::int64_t area = chip_valid_bytes(layout);
   const auto band_count = static_cast<std::int64_t>(layout.bands.size());
   const auto* values = reinterpret_cast<const Stored*>(bands);
   const std::int64_t chip_bytes = band_count * area * static_cast<std::int64_t>(sizeof(Stored));
   std::int64_t released = 0;  // chips whose pages were handed back
   for (std::int64_t chip = 0; chip < chip_count; ++chip) {
-    const std::uint8_t* mask = valid + chip * area;
-    for (std::int64_t band = 0; band < band_count; ++band) {
-      const Stored* plane = values + (chip * band_count + band) * area;
-      for (std::int64_t p = 0; p < area; ++p) {
-        if (mask[p] != 0) visit(band, chip, p, plane[p]);
-      }
-    }
+    visit(chip, values + chip * band_count * area, valid + chip * area);
     if ((chip + 1) % kReleaseEvery == 0 || chip + 1 == chip_count) {
       const std::int64_t done = chip + 1 - released;
       release_pages(bands + released * chip_bytes, static_cast<std::size_t>(done * chip_bytes));
@@ -66,6 +60,23 @@ void for_each_valid(const StoreLayout& layout, std::int64_t chip_count, const st
       released = chip + 1;
     }
   }
+}
+
+// Calls visit(band, chip, pixel, stored value) for every valid pixel, chip by chip.
+template <typename Stored, typename Visit>
+void for_each_valid(const StoreLayout& layout, std::int64_t chip_count, const std::uint8_t* bands,
+                    const std::uint8_t* valid, Visit visit) {
+  const std::int64_t area = chip_valid_bytes(layout);
+  const auto band_count = static_cast<std::int64_t>(layout.bands.size());
+  const auto visit_chip = [&](std::int64_t chip, const Stored* values, const std::uint8_t* mask) {
+    for (std::int64_t band = 0; band < band_count; ++band) {
+      const Stored* plane = values + band * area;
+      for (std::int64_t p = 0; p < area; ++p) {
+        if (mask[p] != 0) visit(band, chip, p, plane[p]);
+      }
+    }
+  };
+  for_each_chip<Stored>(layout, chip_count, bands, valid, visit_chip);
 }
 
 double reflectance(const StoreBand& band, double stored) { return (stored + band.offset) * band.scale; }
@@ -107,17 +118,10 @@ BandStatistics summarise(const BandPass& pass, ValueOfBin value_of_bin) {
 std::vector<BandStatistics> uint16_statistics(const StoreLayout& layout, std::int64_t chip_count,
                                               const std::uint8_t* bands, const std::uint8_t* valid) {
   BandHistograms histograms(layout);
-  const std::int64_t area = chip_valid_bytes(layout), chip_bytes = chip_band_bytes(layout);
-  std::int64_t released = 0;  // chips whose pages were handed back
-  for (std::int64_t chip = 0; chip < chip_count; ++chip) {
-    histograms.add_chip(reinterpret_cast<const std::uint16_t*>(bands + chip * chip_bytes), valid + chip * area);
-    if ((chip + 1) % kReleaseEvery == 0 || chip + 1 == chip_count) {
-      const std::int64_t done = chip + 1 - released;
-      release_pages(bands + released * chip_bytes, static_cast<std::size_t>(done * chip_bytes));
-      release_pages(valid + released * area, static_cast<std::size_t>(done * area));
-      released = chip + 1;
-    }
-  }
+  for_each_chip<std::uint16_t>(layout, chip_count, bands, valid,
+                               [&](std::int64_t, const std::uint16_t* values, const std::uint8_t* mask) {
+                                 histograms.add_chip(values, mask);
+                               });
   return histograms.statistics();
 }
 

@@ -7,8 +7,6 @@
 #undef CHECK
 #include <catch2/catch.hpp>
 
-#include <fstream>
-#include <sstream>
 #include <string>
 
 #include "finetune/finetune_config.hpp"
@@ -16,7 +14,7 @@
 #include "pretrain/pretrain_config.hpp"
 #include "pretrain/pretrain_job.hpp"
 #include "runs/torch_runtime.hpp"
-#include "pretrain_from_text.hpp"
+#include "runs_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "util/config_node.hpp"
@@ -25,6 +23,9 @@
 using Catch::Matchers::Contains;
 using tinct::HeadKind;
 using tinct::HeadPool;
+using tinct::testing::read_finetune_yaml;
+using tinct::testing::read_text;
+using tinct::testing::run_finetune_yaml;
 using tinct::testing::TempFolder;
 
 namespace {
@@ -56,34 +57,6 @@ std::string finetune_yaml(const std::string& output, const std::string& init, co
          "train: {epochs: 2, batch: 4, lr: 0.003, seed: 1, patience: 10}\n";
 }
 
-struct Read {
-  tinct::FinetuneConfig config;
-  std::string resolved;
-};
-
-Read read(const TempFolder& folder, const std::string& yaml) {
-  const auto root = tinct::ConfigNode::from_text(yaml, "finetune.yaml", folder.path());
-  root.choice("config", {"finetune"});
-  Read result{tinct::read_finetune_config(root), ""};
-  root.finish();
-  result.resolved = tinct::resolved_text(root);
-  return result;
-}
-
-void run(const TempFolder& folder, const std::string& yaml) {
-  const Read config = read(folder, yaml);
-  tinct::FinetuneOptions options;
-  options.resolved_config = config.resolved;
-  tinct::run_finetune(config.config, options);
-}
-
-std::string text_of(const std::filesystem::path& file) {
-  std::ifstream in(file);
-  std::stringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
-
 bool has(const std::string& text, const std::string& part) { return text.find(part) != std::string::npos; }
 
 }  // namespace
@@ -91,7 +64,7 @@ bool has(const std::string& text, const std::string& part) { return text.find(pa
 TEST_CASE("without head.pool or head.kind a Lab pretrain run gives the colour + bands linear probe", "[default_head]") {
   Project project;
   const TempFolder& folder = project.folder;
-  const Read read_back = read(folder, finetune_yaml("runs/tune", "{from: pretrain, run: runs/lab}"));
+  const auto read_back = read_finetune_yaml(folder, finetune_yaml("runs/tune", "{from: pretrain, run: runs/lab}"));
   const tinct::FinetuneConfig& c = read_back.config;
   CHECK(c.head.pool == HeadPool::colour);
   CHECK(c.head.kind == HeadKind::linear_probe);
@@ -106,20 +79,20 @@ TEST_CASE("without head.pool or head.kind a Lab pretrain run gives the colour + 
   CHECK(has(read_back.resolved, "kind: linear_probe"));
   CHECK(has(read_back.resolved, "input_bands: true"));
   // Read again from its own resolved config, the same head, now as configured.
-  const Read again = read(folder, read_back.resolved);
+  const auto again = read_finetune_yaml(folder, read_back.resolved);
   CHECK(again.config.head.pool == HeadPool::colour);
   CHECK(again.config.head.input_bands);
   CHECK_FALSE(again.config.head_choice.by_default);
 
   // l2 tunes the default probe; it does not make the head explicit.
-  const Read tuned = read(folder, finetune_yaml("runs/tuned", "{from: pretrain, run: runs/lab}", "head: {l2: 0.5}\n"));
+  const auto tuned = read_finetune_yaml(folder, finetune_yaml("runs/tuned", "{from: pretrain, run: runs/lab}", "head: {l2: 0.5}\n"));
   CHECK(tuned.config.head.pool == HeadPool::colour);
   CHECK(tuned.config.head.l2 == 0.5);
   CHECK(tuned.config.head_choice.by_default);
 
   // The run: fitted as a probe on the predicted colour and 3 input bands, run.yaml says why.
-  run(folder, finetune_yaml("runs/tune", "{from: pretrain, run: runs/lab}"));
-  const std::string run_yaml = text_of(folder / "runs/tune/run.yaml");
+  run_finetune_yaml(folder, finetune_yaml("runs/tune", "{from: pretrain, run: runs/lab}"));
+  const std::string run_yaml = read_text(folder / "runs/tune/run.yaml");
   CHECK(has(run_yaml, "chosen_by: default"));
   CHECK(has(run_yaml, "pool: colour"));
   CHECK(has(run_yaml, "input_bands: true"));
@@ -133,13 +106,13 @@ TEST_CASE("scratch runs and ab-bins pretrain runs keep the trained global head b
   const TempFolder& folder = project.folder;
   for (const std::string init : {"{from: scratch, run: runs/lab}", "{from: scratch, model: {encoder: compact, width: 0.5}}"}) {
     INFO(init);
-    const tinct::FinetuneConfig c = read(folder, finetune_yaml("runs/scratch", init)).config;
+    const tinct::FinetuneConfig c = read_finetune_yaml(folder, finetune_yaml("runs/scratch", init)).config;
     CHECK(c.head.pool == HeadPool::global);
     CHECK(c.head.kind == HeadKind::trained);
     CHECK(c.head_choice.by_default);
     CHECK_THAT(c.head_choice.reason, Contains("scratch"));
   }
-  const Read bins = read(folder, finetune_yaml("runs/bins-tune", "{from: pretrain, run: runs/bins}"));
+  const auto bins = read_finetune_yaml(folder, finetune_yaml("runs/bins-tune", "{from: pretrain, run: runs/bins}"));
   CHECK(bins.config.head.pool == HeadPool::global);
   CHECK(bins.config.head.kind == HeadKind::trained);
   CHECK(bins.config.head_choice.by_default);
@@ -147,8 +120,8 @@ TEST_CASE("scratch runs and ab-bins pretrain runs keep the trained global head b
   CHECK(has(bins.resolved, "pool: global"));
   CHECK(has(bins.resolved, "dropout:"));  // a trained head's keys, filled in
 
-  run(folder, finetune_yaml("runs/scratch", "{from: scratch, run: runs/lab}"));
-  const std::string run_yaml = text_of(folder / "runs/scratch/run.yaml");
+  run_finetune_yaml(folder, finetune_yaml("runs/scratch", "{from: scratch, run: runs/lab}"));
+  const std::string run_yaml = read_text(folder / "runs/scratch/run.yaml");
   CHECK(has(run_yaml, "chosen_by: default"));
   CHECK(has(run_yaml, "pool: global"));
   CHECK(has(run_yaml, "kind: trained"));
@@ -160,38 +133,38 @@ TEST_CASE("an explicit head wins over the default, and a trained head's keys ask
   Project project;
   const TempFolder& folder = project.folder;
   const std::string lab = "{from: pretrain, run: runs/lab}";
-  const tinct::FinetuneConfig knn = read(folder, finetune_yaml("runs/knn", lab, "head: {pool: centre, kind: knn}\n")).config;
+  const tinct::FinetuneConfig knn = read_finetune_yaml(folder, finetune_yaml("runs/knn", lab, "head: {pool: centre, kind: knn}\n")).config;
   CHECK(knn.head.pool == HeadPool::centre);
   CHECK(knn.head.kind == HeadKind::knn);
   CHECK_FALSE(knn.head_choice.by_default);
   // A named pool keeps the other keys' own defaults: trained, without the input bands.
-  const tinct::FinetuneConfig colour = read(folder, finetune_yaml("runs/colour", lab, "head: {pool: colour}\n")).config;
+  const tinct::FinetuneConfig colour = read_finetune_yaml(folder, finetune_yaml("runs/colour", lab, "head: {pool: colour}\n")).config;
   CHECK(colour.head.kind == HeadKind::trained);
   CHECK_FALSE(colour.head.input_bands);
-  const tinct::FinetuneConfig global = read(folder, finetune_yaml("runs/global", lab, "head: {kind: trained}\n")).config;
+  const tinct::FinetuneConfig global = read_finetune_yaml(folder, finetune_yaml("runs/global", lab, "head: {kind: trained}\n")).config;
   CHECK(global.head.pool == HeadPool::global);
-  const tinct::FinetuneConfig dropout = read(folder, finetune_yaml("runs/dropout", lab, "head: {dropout: 0.3}\n")).config;
+  const tinct::FinetuneConfig dropout = read_finetune_yaml(folder, finetune_yaml("runs/dropout", lab, "head: {dropout: 0.3}\n")).config;
   CHECK(dropout.head.pool == HeadPool::global);
   CHECK(dropout.head.kind == HeadKind::trained);
   CHECK(dropout.dropout == 0.3);
   CHECK_THAT(dropout.head_choice.reason, Contains("head.dropout"));
 
-  run(folder, finetune_yaml("runs/knn", lab, "head: {pool: centre, kind: knn}\n"));
-  const std::string run_yaml = text_of(folder / "runs/knn/run.yaml");
+  run_finetune_yaml(folder, finetune_yaml("runs/knn", lab, "head: {pool: centre, kind: knn}\n"));
+  const std::string run_yaml = read_text(folder / "runs/knn/run.yaml");
   CHECK(has(run_yaml, "chosen_by: config"));
   CHECK(has(run_yaml, "pool: centre"));
   CHECK_FALSE(has(run_yaml, "reason: the pretrain"));
 
   // A pretrain run that is not there: refused, saying what the default would be by rule.
   try {
-    read(folder, finetune_yaml("runs/none", "{from: pretrain, run: runs/bins-missing}"));
+    read_finetune_yaml(folder, finetune_yaml("runs/none", "{from: pretrain, run: runs/bins-missing}"));
     FAIL("expected a usage error");
   } catch (const tinct::Error& e) {
     CHECK(e.exit_code() == 2);
   }
   std::filesystem::create_directories(folder / "runs/unfinished");
   try {
-    read(folder, finetune_yaml("runs/none", "{from: pretrain, run: runs/unfinished}"));
+    read_finetune_yaml(folder, finetune_yaml("runs/none", "{from: pretrain, run: runs/unfinished}"));
     FAIL("expected a usage error");
   } catch (const tinct::Error& e) {
     CHECK(e.exit_code() == 2);

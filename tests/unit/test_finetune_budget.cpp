@@ -13,10 +13,13 @@
 #include "finetune/finetune_config.hpp"
 #include "finetune/finetune_job.hpp"
 #include "runs/torch_runtime.hpp"
+#include "runs_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "util/config_node.hpp"
 
+using tinct::testing::read_text;
+using tinct::testing::run_finetune_yaml;
 using tinct::testing::TempFolder;
 
 namespace {
@@ -28,27 +31,10 @@ std::string finetune_yaml(const std::string& output, const std::string& budget, 
          "train: {epochs: 3, batch: 4, lr: 0.003, seed: " + std::to_string(train_seed) + ", patience: 10}\n";
 }
 
-tinct::FinetuneResult run(const TempFolder& folder, const std::string& yaml) {
-  const auto root = tinct::ConfigNode::from_text(yaml, "finetune.yaml", folder.path());
-  root.choice("config", {"finetune"});
-  const tinct::FinetuneConfig config = tinct::read_finetune_config(root);
-  root.finish();
-  tinct::FinetuneOptions options;
-  options.resolved_config = tinct::resolved_text(root);
-  return tinct::run_finetune(config, options);
-}
-
-std::string text_of(const std::filesystem::path& file) {
-  std::ifstream in(file);
-  std::stringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
-
 // role -> rows of split.csv (the role is the 10th of 11 fields; no field here holds a comma)
 std::map<std::string, int> roles_in(const std::filesystem::path& split_csv) {
   std::map<std::string, int> roles;
-  std::istringstream lines(text_of(split_csv));
+  std::istringstream lines(read_text(split_csv));
   std::string line;
   std::getline(lines, line);
   while (std::getline(lines, line)) {
@@ -64,7 +50,7 @@ std::map<std::string, int> roles_in(const std::filesystem::path& split_csv) {
 
 std::set<std::string> test_ids(const std::filesystem::path& predictions_csv) {
   std::set<std::string> ids;
-  std::istringstream lines(text_of(predictions_csv));
+  std::istringstream lines(read_text(predictions_csv));
   std::string line;
   std::getline(lines, line);
   while (std::getline(lines, line)) ids.insert(line.substr(0, line.find(',')));
@@ -77,37 +63,37 @@ TEST_CASE("a budget of N per class reads at most N x classes labelled chips befo
   tinct::configure_threads(1);
   TempFolder folder;
   tinct::testing::write_tiny_label_store(folder / "tiny.labels", 10);  // 100 chips, 2 classes
-  const tinct::FinetuneResult budgeted = run(folder, finetune_yaml("runs/five", "budget: {per_class: 5}\n", 1));
+  const tinct::FinetuneResult budgeted = run_finetune_yaml(folder, finetune_yaml("runs/five", "budget: {per_class: 5}\n", 1));
   const auto roles = roles_in(folder / "runs/five/split.csv");
   CHECK(roles.at("train") + roles.at("validation") == 10);
   CHECK(budgeted.labelled_chips_read == 10);  // 5 x 2 classes, every one of them read
   CHECK(roles.at("unused") > 0);
 
   // Without a budget, the tally is every training and validation chip: the count is real.
-  const tinct::FinetuneResult all = run(folder, finetune_yaml("runs/all", "budget: all\n", 1));
+  const tinct::FinetuneResult all = run_finetune_yaml(folder, finetune_yaml("runs/all", "budget: all\n", 1));
   const auto every = roles_in(folder / "runs/all/split.csv");
   CHECK(all.labelled_chips_read == every.at("train") + every.at("validation"));
   CHECK(all.labelled_chips_read > 10);
   CHECK(every.at("test") == roles.at("test"));
 
   // A linear probe with l2 by inner cross-validation fits its folds on the budget alone.
-  const tinct::FinetuneResult probe = run(
+  const tinct::FinetuneResult probe = run_finetune_yaml(
       folder, finetune_yaml("runs/probe", "budget: {per_class: 5}\nhead: {pool: centre, kind: linear_probe}\n", 1));
   CHECK(probe.labelled_chips_read == 10);
-  CHECK(text_of(folder / "runs/probe/run.yaml").find("l2_chosen_by: inner_cv") != std::string::npos);
+  CHECK(read_text(folder / "runs/probe/run.yaml").find("l2_chosen_by: inner_cv") != std::string::npos);
 }
 
 TEST_CASE("the training seed changes training only: split.csv and the test set stay") {
   tinct::configure_threads(1);
   TempFolder folder;
   tinct::testing::write_tiny_label_store(folder / "tiny.labels", 10);
-  run(folder, finetune_yaml("runs/seed1", "budget: {per_class: 6}\n", 1));
-  run(folder, finetune_yaml("runs/seed2", "budget: {per_class: 6}\n", 2));
-  CHECK(text_of(folder / "runs/seed1/split.csv") == text_of(folder / "runs/seed2/split.csv"));
+  run_finetune_yaml(folder, finetune_yaml("runs/seed1", "budget: {per_class: 6}\n", 1));
+  run_finetune_yaml(folder, finetune_yaml("runs/seed2", "budget: {per_class: 6}\n", 2));
+  CHECK(read_text(folder / "runs/seed1/split.csv") == read_text(folder / "runs/seed2/split.csv"));
   CHECK(test_ids(folder / "runs/seed1/predictions.csv") == test_ids(folder / "runs/seed2/predictions.csv"));
-  CHECK(text_of(folder / "runs/seed1/metrics.csv") != text_of(folder / "runs/seed2/metrics.csv"));
+  CHECK(read_text(folder / "runs/seed1/metrics.csv") != read_text(folder / "runs/seed2/metrics.csv"));
   // The budget's own seed draws other labels; the test set still stays.
-  run(folder, finetune_yaml("runs/draw", "budget: {per_class: 6, seed: 9}\n", 1));
-  CHECK(text_of(folder / "runs/seed1/split.csv") != text_of(folder / "runs/draw/split.csv"));
+  run_finetune_yaml(folder, finetune_yaml("runs/draw", "budget: {per_class: 6, seed: 9}\n", 1));
+  CHECK(read_text(folder / "runs/seed1/split.csv") != read_text(folder / "runs/draw/split.csv"));
   CHECK(test_ids(folder / "runs/seed1/predictions.csv") == test_ids(folder / "runs/draw/predictions.csv"));
 }

@@ -31,7 +31,7 @@
 #include "runs/metrics_log.hpp"
 #include "runs/safetensors.hpp"
 #include "runs/torch_runtime.hpp"
-#include "pretrain_from_text.hpp"
+#include "runs_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "training/optimizer.hpp"
@@ -92,16 +92,6 @@ std::vector<double> losses_of(const std::filesystem::path& metrics_csv) {
   return losses;
 }
 
-tinct::FinetuneResult run_finetune_yaml(const TempFolder& folder, const std::string& yaml) {
-  const auto root = tinct::ConfigNode::from_text(yaml, "finetune.yaml", folder.path());
-  root.choice("config", {"finetune"});
-  const tinct::FinetuneConfig config = tinct::read_finetune_config(root);
-  root.finish();
-  tinct::FinetuneOptions options;
-  options.resolved_config = tinct::resolved_text(root);
-  return tinct::run_finetune(config, options);
-}
-
 void check_losses(const std::vector<double>& actual, const std::vector<double>& pinned) {
   REQUIRE(actual.size() >= pinned.size());
   for (std::size_t i = 0; i < pinned.size(); ++i) {
@@ -124,9 +114,9 @@ TEST_CASE("a tiny seeded finetune gives its pinned losses", "[parity]") {
   tinct::configure_threads(1);
   TempFolder folder;
   tinct::testing::write_tiny_label_store(folder / "tiny.labels", 8);
-  run_finetune_yaml(folder, finetune_yaml("runs/constant", ", warmup: 0, min_lr: 0.003, clip_norm: 0"));
+  tinct::testing::run_finetune_yaml(folder, finetune_yaml("runs/constant", ", warmup: 0, min_lr: 0.003, clip_norm: 0"));
   check_losses(losses_of(folder / "runs/constant/metrics.csv"), kFinetuneConstantLosses);
-  const tinct::FinetuneResult result = run_finetune_yaml(folder, finetune_yaml("runs/defaults", ""));
+  const tinct::FinetuneResult result = tinct::testing::run_finetune_yaml(folder, finetune_yaml("runs/defaults", ""));
   check_losses(losses_of(folder / "runs/defaults/metrics.csv"), kFinetuneDefaultLosses);
   CHECK(result.status == tinct::RunStatus::done);
   CHECK(result.epochs_run == 4);

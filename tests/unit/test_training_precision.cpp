@@ -14,7 +14,7 @@
 #include "pretrain/pretrain_config.hpp"
 #include "pretrain/pretrain_job.hpp"
 #include "runs/torch_runtime.hpp"
-#include "pretrain_from_text.hpp"
+#include "runs_from_text.hpp"
 #include "temp_folder.hpp"
 #include "tiny_stores.hpp"
 #include "util/config_node.hpp"

@@ -7,6 +7,8 @@
 
 #include <functional>
 #include <limits>
+#include <optional>
+#include <utility>
 #include <vector>
 
 namespace tinct {
@@ -29,14 +31,27 @@ struct CommandEntry {
   CommandSetup setup;
 };
 
-// The tool's description and global options, the same in both executables.
+// The tool's description, the same in both executables.
 inline const char* const kToolDescription =
     "tinct: self-supervised band-to-colour pretraining and habitat mapping from multispectral imagery, on the CPU";
-void add_global_options(CLI::App& app, GlobalOptions& global);
 
 // survey, pair and label: they need no LibTorch, so `tinct` runs them in its own process
 // (cli/front_main.cpp); the table of every command (cli/main.cpp) starts with them.
 const std::vector<CommandEntry>& data_commands();
+
+// The subcommands of a parsed command line, each with what it runs.
+using CommandTable = std::vector<std::pair<CLI::App*, CommandRun>>;
+
+// Puts the global options (--threads, --quiet; also accepted after the command) and
+// `entries` as subcommands, one of them required, on `app`.
+CommandTable add_commands(CLI::App& app, const std::vector<CommandEntry>& entries, GlobalOptions& global);
+
+// Parses the command line; the exit code when it ends there (help or version shown: 0, a
+// usage error: 2), nothing when the command is to run.
+std::optional<int> parse_or_exit(CLI::App& app, int argc, char** argv);
+
+// Runs the command the command line named.
+void run_parsed(const CommandTable& commands);
 
 CommandRun setup_survey(CLI::App& command, const GlobalOptions& global);
 CommandRun setup_check(CLI::App& command, const GlobalOptions& global);

@@ -11,8 +11,6 @@
 #include <cstring>
 #include <filesystem>
 #include <string>
-#include <utility>
-#include <vector>
 
 #include "cli/commands.hpp"
 #include "cli/process_guard.hpp"
@@ -47,25 +45,11 @@ bool runs_here(int argc, char** argv) {
 int main(int argc, char** argv) {
   if (!runs_here(argc, argv)) hand_over(argv);
   CLI::App app{tinct::kToolDescription, "tinct"};
-  app.require_subcommand(1);
   tinct::GlobalOptions global;  // --threads: LibTorch's threads, none here
-  tinct::add_global_options(app, global);
-  std::vector<std::pair<CLI::App*, tinct::CommandRun>> commands;
-  for (const auto& entry : tinct::data_commands()) {
-    CLI::App* command = app.add_subcommand(entry.name, entry.summary);
-    command->fallthrough();  // global options (--threads, --quiet) also after the command
-    commands.emplace_back(command, entry.setup(*command, global));
-  }
-  try {
-    app.parse(argc, argv);
-  } catch (const CLI::ParseError& error) {
-    const int code = app.exit(error);  // prints the command's help or the usage error
-    return code == 0 ? 0 : 2;
-  }
+  const tinct::CommandTable commands = tinct::add_commands(app, tinct::data_commands(), global);
+  if (const auto code = tinct::parse_or_exit(app, argc, argv)) return *code;
   return tinct::run_guarded([&] {
     tinct::log::set_quiet(global.quiet);
-    for (auto& [command, run] : commands) {
-      if (command->parsed()) run();
-    }
+    tinct::run_parsed(commands);
   });
 }

@@ -66,44 +66,25 @@ std::string unknown_command_message(const std::string& word) {
          " The commands are " + list + " (tinct --help describes them)";
 }
 
-int parse_error_exit(const CLI::App& app, const CLI::ParseError& error) {
-  const int code = app.exit(error);  // prints help, version or the usage error
-  return code == 0 ? 0 : 2;
-}
-
 }  // namespace
 
 int main(int argc, char** argv) {
   // Named explicitly so usage lines say "tinct", not the path the binary was run by.
   CLI::App app{tinct::kToolDescription, "tinct"};
   app.set_version_flag("--version", version_text());
-  app.require_subcommand(1);
   tinct::GlobalOptions global;
-  tinct::add_global_options(app, global);
-
-  std::vector<std::pair<CLI::App*, tinct::CommandRun>> commands;
-  for (const auto& entry : all_commands()) {
-    CLI::App* command = app.add_subcommand(entry.name, entry.summary);
-    command->fallthrough();  // global options (--threads, --quiet) also after the command
-    commands.emplace_back(command, entry.setup(*command, global));
-  }
+  const tinct::CommandTable commands = tinct::add_commands(app, all_commands(), global);
 
   const std::string unknown = unknown_command_message(tinct::command_word(argc, argv));
   if (!unknown.empty()) {
     tinct::log::error(unknown);
     return 2;
   }
-  try {
-    app.parse(argc, argv);
-  } catch (const CLI::ParseError& error) {
-    return parse_error_exit(app, error);
-  }
+  if (const auto code = tinct::parse_or_exit(app, argc, argv)) return *code;
 
   return tinct::run_guarded([&] {
     tinct::log::set_quiet(global.quiet);
     tinct::configure_threads(global.threads);
-    for (auto& [command, run] : commands) {
-      if (command->parsed()) run();
-    }
+    tinct::run_parsed(commands);
   });
 }

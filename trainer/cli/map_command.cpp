@@ -54,8 +54,9 @@ static void run_map_command(const MapOptions& options, const GlobalOptions& glob
                std::to_string(settings.inputs.feature_stride) + " px); the stride is " +
                std::to_string(settings.stride) + ": use --mode exact or another --stride");
   }
-  if (settings.mode == MapMode::dense && !dense_refusal(settings.inputs).empty()) {
-    fail_usage("--mode dense: " + dense_refusal(settings.inputs));
+  if (settings.mode == MapMode::dense) {
+    const std::string refusal = dense_refusal(settings.inputs);
+    if (!refusal.empty()) fail_usage("--mode dense: " + refusal);
   }
   MapJobOptions job;
   job.replace = options.force;

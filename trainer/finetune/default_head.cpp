@@ -33,8 +33,10 @@ HeadChoice from_pretrain_run(const std::filesystem::path& run) {
 
 }  // namespace
 
+bool head_left_to_default(const ConfigNode& head) { return !head.has("pool") && !head.has("kind"); }
+
 HeadChoice choose_head_default(const ConfigNode& head, bool pretrained, const std::filesystem::path& pretrain_run) {
-  if (head.has("pool") || head.has("kind")) return {HeadSpec{}, false, ""};
+  if (!head_left_to_default(head)) return {HeadSpec{}, false, ""};
   for (const char* key : {"dropout", "hidden"}) {
     if (head.has(key)) return global_trained(std::string("head.") + key + " is set, which only a trained head takes");
   }

@@ -25,6 +25,9 @@ struct HeadChoice {
   std::string reason;       // why this default; empty when the config names the head
 };
 
+// The `head:` section names neither pool nor kind, so the default decides them.
+bool head_left_to_default(const ConfigNode& head);
+
 // `pretrain_run` is read only when `pretrained` (its encoder.pt must exist).
 HeadChoice choose_head_default(const ConfigNode& head, bool pretrained, const std::filesystem::path& pretrain_run);
 

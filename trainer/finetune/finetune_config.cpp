@@ -116,7 +116,7 @@ FinetuneConfig read_finetune_config(const ConfigNode& root) {
   config.output = root.path("output", false);
   const ConfigNode init = root.section("init");
   const ConfigNode head = root.section("head");
-  config.init = read_init(init, bands, !head.has("pool") && !head.has("kind"));
+  config.init = read_init(init, bands, head_left_to_default(head));
   require_no_conflicts(config.init.pretrain_run.empty()
                            ? store_conflicts(root, config.stores, config.init.model.encoder)
                            : store_conflicts_with_run(root, config.stores, config.init.pretrain_run, init, "run"));

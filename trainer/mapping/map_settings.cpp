@@ -83,7 +83,10 @@ void read_options(const ConfigNode& root, MapSettings& s) {
   s.aoa = root.flag("aoa", true);
   s.aoa_step = static_cast<int>(root.integer("aoa_step", 8, 1, 32));
   if (32 % s.aoa_step != 0) root.fail("aoa_step", "must divide 32: 1, 2, 4, 8, 16 or 32");
-  if (s.mode == MapMode::dense && !dense_refusal(s.inputs).empty()) root.fail("mode", dense_refusal(s.inputs));
+  if (s.mode == MapMode::dense) {
+    const std::string refusal = dense_refusal(s.inputs);
+    if (!refusal.empty()) root.fail("mode", refusal);
+  }
   s.batch = static_cast<int>(root.integer("batch", 32, 1, 4096));
 }
 

@@ -1,7 +1,5 @@
 #include "mapping/point_predictions.hpp"
 
-#include <algorithm>
-#include <cctype>
 #include <cmath>
 #include <limits>
 #include <memory>
@@ -68,23 +66,13 @@ PointSet read_csv_points(const fs::path& file, const std::string& scene_crs) {
   return set;
 }
 
-// The layer's field named id in any case (ID, Id, id), -1 when it has none.
-int id_field(const VectorLayer& layer) {
-  const std::vector<std::string> names = layer.field_names();
-  for (std::size_t i = 0; i < names.size(); ++i) {
-    std::string lower = names[i];
-    std::transform(lower.begin(), lower.end(), lower.begin(), [](unsigned char c) { return std::tolower(c); });
-    if (lower == "id") return static_cast<int>(i);
-  }
-  return -1;
-}
-
-// A point's id: the layer's id field, else (no such field, or null there) its feature id.
+// A point's id: the layer's id field (OGR matches field names in any case: ID, Id), else
+// (no such field, or null there) its feature id.
 PointSet read_vector_points(const fs::path& file) {
   const VectorLayer layer = VectorLayer::open(file, "", "--points");
   PointSet set{layer.crs_wkt(), {}};
   if (set.crs.empty()) fail_usage(file.string() + ": the layer has no CRS; give one, or use a CSV with lon,lat");
-  layer.for_each_feature({id_field(layer)}, [&](const VectorFeature& f) {
+  layer.for_each_feature({layer.field_index("id")}, [&](const VectorFeature& f) {
     if (f.geometry.kind != GeometryKind::point) {
       fail_usage(file.string() + ": feature " + std::to_string(f.fid) + " is a " + f.geometry.type_name +
                  "; --points takes points");

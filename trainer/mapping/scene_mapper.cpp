@@ -3,7 +3,6 @@
 #include <algorithm>
 #include <chrono>
 #include <cstdio>
-#include <ctime>
 
 #include "mapping/map_products.hpp"
 #include "mapping/quicklook.hpp"
@@ -13,6 +12,7 @@
 #include "raster/scene.hpp"
 #include "util/log.hpp"
 #include "util/progress.hpp"
+#include "util/stage_times.hpp"
 
 namespace fs = std::filesystem;
 
@@ -126,29 +126,7 @@ int strip_window_rows(const WindowLayout& layout, int bands, int step) {
   return std::max(step, std::min(kStripWindowRows, fit) / step * step);
 }
 
-// Seconds spent per stage of a scene's loop, for the log (where a map's time goes): wall
-// clock, and the process's CPU time, which on a machine other jobs load still says what each
-// stage costs (the wall clock then mostly measures the wait for a core).
-struct StageTime {
-  double wall = 0, cpu = 0;
-};
-
-class StageClock {
- public:
-  void start() {
-    wall_ = std::chrono::steady_clock::now();
-    cpu_ = std::clock();
-  }
-  void stop(StageTime& total) {
-    total.wall += std::chrono::duration<double>(std::chrono::steady_clock::now() - wall_).count();
-    total.cpu += static_cast<double>(std::clock() - cpu_) / CLOCKS_PER_SEC;
-  }
-
- private:
-  std::chrono::steady_clock::time_point wall_;
-  std::clock_t cpu_ = 0;
-};
-
+// Seconds spent per stage of a scene's loop, for the log (where a map's time goes).
 struct StageSeconds {
   StageTime read, model, cells, applicability, write;
 
